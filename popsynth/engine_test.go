@@ -9,8 +9,8 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
-	"strconv"
 	"slices"
+	"strconv"
 	"testing"
 
 	"github.com/corefall/corefall/imf"
@@ -64,7 +64,10 @@ func TestDeterminismAcrossWorkers(t *testing.T) {
 		var hashes [][32]byte
 		for _, w := range []int{1, 4} {
 			set := append([]string{"systems=150000", "workers=" + strconv.Itoa(w)}, c.set...)
-			path := filepath.Join(dir, c.name+strconv.Itoa(w))
+			path := filepath.Join(dir, c.name+strconv.Itoa(w), "c")
+			if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
+				t.Fatal(err)
+			}
 			runTo(t, load(t, set...), path)
 			hashes = append(hashes, fileHash(t, path))
 		}
@@ -106,8 +109,9 @@ func TestCatalogueReadBack(t *testing.T) {
 	if err != nil {
 		t.Fatalf("stored config does not load: %v", err)
 	}
+	cfg.Output.Path = "c.parquet" // recorded as the base name
 	if back.YAML() != cfg.YAML() {
-		t.Error("stored config differs from the effective config")
+		t.Errorf("stored config differs from the effective config:\n%s\nvs\n%s", back.YAML(), cfg.YAML())
 	}
 	// system_id runs 0..N-1 in order.
 	r, err := catalog.Open(path)

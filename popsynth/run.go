@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"path/filepath"
 	"runtime"
 	"strconv"
 	"time"
@@ -36,9 +37,18 @@ func (s Summary) SystemsPerSecond() float64 {
 
 // Metadata returns the key-value metadata that a catalogue made by e carries: the effective config
 // as YAML, the seed, the versions, the number of systems and the stellar mass represented.
-func (e *Engine) Metadata() map[string]string {
+//
+// The recorded config is the effective one with two execution details normalised, so that they do
+// not change the file's bytes: workers is recorded as 0 (the catalogue is the same for any number of
+// workers) and output.path as the file's base name.
+func (e *Engine) Metadata() map[string]string { return e.metadataFor(e.cfg.Output.Path) }
+
+func (e *Engine) metadataFor(path string) map[string]string {
+	rec := e.cfg
+	rec.Workers = 0
+	rec.Output.Path = filepath.Base(path)
 	return map[string]string{
-		catalog.MetaConfig:          e.cfg.YAML(),
+		catalog.MetaConfig:          rec.YAML(),
 		catalog.MetaSeed:            strconv.FormatUint(e.cfg.Seed, 10),
 		catalog.MetaVersion:         Version,
 		catalog.MetaGoVersion:       runtime.Version(),
@@ -59,7 +69,7 @@ func (e *Engine) WriteCatalogue(ctx context.Context, path string, progress Progr
 	w, err := catalog.Create(path, e.schema, catalog.Options{
 		Format:       format,
 		RowGroupRows: e.cfg.Output.RowGroupRows,
-		Metadata:     e.Metadata(),
+		Metadata:     e.metadataFor(path),
 	})
 	if err != nil {
 		return Summary{}, err

@@ -35,17 +35,29 @@ func ReadStellarTable(path string) ([]remnant.TableRow, error) {
 	if err != nil {
 		return nil, fmt.Errorf("core.table: cannot read the stellar-model grid: %w", err)
 	}
-	var rows []remnant.TableRow
+	rows, err := ParseStellarTable(data)
+	if err != nil {
+		return nil, fmt.Errorf("core.table %s: %w", path, err)
+	}
+	return rows, nil
+}
+
+// ParseStellarTable parses the contents of a stellar-model grid file, CSV or Parquet.
+func ParseStellarTable(data []byte) ([]remnant.TableRow, error) {
+	var (
+		rows []remnant.TableRow
+		err  error
+	)
 	if bytes.HasPrefix(data, []byte("PAR1")) {
 		rows, err = readStellarParquet(data)
 	} else {
 		rows, err = readStellarCSV(data)
 	}
 	if err != nil {
-		return nil, fmt.Errorf("core.table %s: %w", path, err)
+		return nil, err
 	}
 	if len(rows) == 0 {
-		return nil, fmt.Errorf("core.table %s: the grid has no rows", path)
+		return nil, errors.New("the grid has no rows")
 	}
 	return rows, nil
 }

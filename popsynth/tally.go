@@ -119,7 +119,7 @@ func (h *MassHist) Quantile(p float64) float64 {
 type Tally struct {
 	Systems  int64 // systems evolved
 	Binaries int64
-	Dropped  int64 // interacting binaries left out of the catalogue (binary.interacting = drop)
+	Dropped  int64    // interacting binaries left out of the catalogue (binary.interacting = drop)
 	Counts   [8]int64 // indexed by remnant.Type
 	Outcomes [numOutcomes]int64
 	BH, NS   MassHist
