@@ -138,3 +138,24 @@ func TestEditDistance(t *testing.T) {
 		}
 	}
 }
+
+// TestShippedConfigs: every example config in configs/ loads and builds an engine.
+func TestShippedConfigs(t *testing.T) {
+	files, _ := filepath.Glob("../configs/*.yaml")
+	if len(files) < 2 {
+		t.Fatalf("found %d configs", len(files))
+	}
+	for _, f := range files {
+		if strings.HasPrefix(filepath.Base(f), "sweep") {
+			continue // sweep files are checked by package sweep
+		}
+		cfg, err := Load(Sources{File: f})
+		if err != nil {
+			t.Errorf("%s: %v", f, err)
+			continue
+		}
+		if _, err := NewEngine(cfg); err != nil {
+			t.Errorf("%s: %v", f, err)
+		}
+	}
+}
