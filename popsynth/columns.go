@@ -113,8 +113,8 @@ func (c *starColumns) put(b *catalog.Batch, i int, s *StarResult) {
 	setF32(b, c.finalMass, i, s.Core.FinalMass)
 	setF32(b, c.heCore, i, s.Core.HeCoreMass)
 	setF32(b, c.coCore, i, s.Core.COCoreMass)
-	b.Cols[c.fate].Cat[i] = c.fateCode[s.Remnant.Fate]
-	b.Cols[c.typ].Cat[i] = c.typeCode[s.Remnant.Type]
+	setCat(b, c.fate, i, c.fateCode[s.Remnant.Fate])
+	setCat(b, c.typ, i, c.typeCode[s.Remnant.Type])
 	setF32(b, c.mass, i, s.Remnant.Mass)
 	setF32(b, c.fallback, i, s.Remnant.FallbackFraction)
 	setF32(b, c.kick, i, s.KickSpeed())
@@ -122,13 +122,18 @@ func (c *starColumns) put(b *catalog.Batch, i int, s *StarResult) {
 
 // putNull marks the star's nullable float columns missing in row i (a single star has no companion).
 func (c *starColumns) putNull(b *catalog.Batch, i int) {
-	for _, j := range [...]int{c.initialMass, c.lifetime, c.finalMass, c.heCore, c.coCore, c.mass, c.fallback, c.kick} {
+	for _, j := range [...]int{c.initialMass, c.lifetime, c.finalMass, c.heCore, c.coCore, c.fate, c.typ, c.mass, c.fallback, c.kick} {
 		setNull(b, j, i)
 	}
-	// Category columns have no nulls: a missing companion is recorded by outcome = single and the
-	// companion's type and fate take the neutral words "none" and "alive" only as placeholders.
-	b.Cols[c.fate].Cat[i] = c.fateCode[remnant.Alive]
-	b.Cols[c.typ].Cat[i] = c.typeCode[remnant.None]
+}
+
+// setCat sets a category column value (and marks it present when the column is nullable).
+func setCat(b *catalog.Batch, col, i int, code uint8) {
+	cd := &b.Cols[col]
+	cd.Cat[i] = code
+	if cd.Valid != nil {
+		cd.Valid[i] = true
+	}
 }
 
 // setF32 sets a float32 column value (and marks it present when the column is nullable).
@@ -143,6 +148,11 @@ func setF32(b *catalog.Batch, col, i int, x float64) {
 // setNull marks a nullable column's value missing.
 func setNull(b *catalog.Batch, col, i int) {
 	cd := &b.Cols[col]
-	cd.F32[i] = 0
+	if cd.F32 != nil {
+		cd.F32[i] = 0
+	}
+	if cd.Cat != nil {
+		cd.Cat[i] = 0
+	}
 	cd.Valid[i] = false
 }

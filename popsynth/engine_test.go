@@ -100,6 +100,18 @@ func TestCatalogueReadBack(t *testing.T) {
 	if info.Tally.Counts != s.Counts {
 		t.Errorf("counts from the file %v differ from the run's %v", info.Tally.Counts, s.Counts)
 	}
+	// With binaries, companions (and their absence for single stars) are counted the same way
+	// from the file as during the run.
+	pathB := filepath.Join(t.TempDir(), "b.parquet")
+	sb := runTo(t, load(t, "systems=30000", "binary_fraction=0.4"), pathB)
+	infoB, err := Inspect(pathB)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if infoB.Tally.Counts != sb.Counts || infoB.Tally.Outcomes != sb.Outcomes || infoB.Tally.Binaries != sb.Binaries {
+		t.Errorf("binary catalogue: file counts %v %v %d, run %v %v %d", infoB.Tally.Counts, infoB.Tally.Outcomes, infoB.Tally.Binaries,
+			sb.Counts, sb.Outcomes, sb.Binaries)
+	}
 	for _, k := range []string{catalog.MetaConfig, catalog.MetaSeed, catalog.MetaVersion, catalog.MetaGoVersion, catalog.MetaSystems, catalog.MetaMassRepresented, catalog.MetaBinaries} {
 		if info.Metadata[k] == "" {
 			t.Errorf("metadata %s missing", k)

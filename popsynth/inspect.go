@@ -91,7 +91,7 @@ func Inspect(path string) (CatalogueInfo, error) {
 			}
 			t.Outcomes[o]++
 			for k, sc := range stars {
-				if k == 1 && o == Single {
+				if v := b.Cols[sc.typ].Valid; v != nil && !v[i] {
 					continue // a single star has no companion
 				}
 				t.AddStar(typeMaps[k][b.Cols[sc.typ].Cat[i]], float64(b.Cols[sc.mass].F32[i]))

@@ -123,6 +123,9 @@ JobCompType=jobcomp/none
 MpiDefault=none
 SwitchType=switch/none
 SchedulerType=sched/backfill
+# Test the pending array elements every second (defaults: 60 s and 30 s), so that a throttled
+# job array moves on as soon as an element ends.
+SchedulerParameters=sched_interval=1,bf_interval=1
 SelectType=select/cons_tres
 SelectTypeParameters=CR_Core_Memory
 DefMemPerCPU=512

@@ -55,9 +55,9 @@ func flagPositive(name string, x float64) error {
 
 func (a *app) starCommand() *cobra.Command {
 	var (
-		cf        configFlags
-		mass, z   float64
-		asJSON    bool
+		cf      configFlags
+		mass, z float64
+		asJSON  bool
 	)
 	cmd := &cobra.Command{
 		Use:   "star --mass M --metallicity Z",
