@@ -72,8 +72,11 @@ catalogues to Parquet, Arrow or CSV with full provenance.`,
 		a.remnantCommand(),
 		a.inspiralCommand(),
 		a.inspectCommand(),
+		a.ratesCommand(),
+		a.plotCommand(),
 		a.configCommand(),
 		a.versionCommand(),
+		a.sweepCommand(),
 	)
 	return root
 }
