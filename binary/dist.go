@@ -86,6 +86,46 @@ func (p powerLaw) quantile(u float64) float64 {
 	return math.Min(math.Max(x, p.lo), p.hi)
 }
 
+// fastLaw is a powerLaw with the constants of its inverse CDF computed once, for drawing many
+// values: quantile gives the same values as powerLaw.quantile.
+type fastLaw struct {
+	p          powerLaw
+	invS, l, e float64 // 1/(k+1), ln(hi/lo), expm1((k+1) ln(hi/lo))
+}
+
+func (p powerLaw) fast() *fastLaw {
+	f := &fastLaw{p: p}
+	s := p.k + 1
+	if s != 0 {
+		f.invS = 1 / s
+	}
+	if p.lo > 0 {
+		f.l = math.Log(p.hi / p.lo)
+		f.e = math.Expm1(s * f.l)
+	}
+	return f
+}
+
+func (f *fastLaw) quantile(u float64) float64 {
+	p := &f.p
+	if !(u >= 0 && u <= 1) {
+		return math.NaN()
+	}
+	var x float64
+	switch {
+	case p.lo == 0:
+		if u == 0 {
+			return 0
+		}
+		x = p.hi * math.Exp(math.Log(u)*f.invS)
+	case f.invS == 0:
+		x = p.lo * math.Exp(u*f.l)
+	default:
+		x = p.lo * math.Exp(math.Log1p(u*f.e)*f.invS)
+	}
+	return math.Min(math.Max(x, p.lo), p.hi)
+}
+
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 
 // MassRatio is the distribution of the mass ratio q = M2/M1 of a binary,
@@ -95,12 +135,17 @@ func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 type MassRatio struct {
 	Kappa float64 // power-law index of f(q)
 	QMin  float64 // lower limit of q, 0 <= QMin < 1
+	fast  *fastLaw
 }
 
 // NewMassRatio returns a validated MassRatio.
 func NewMassRatio(kappa, qMin float64) (MassRatio, error) {
 	d := MassRatio{Kappa: kappa, QMin: qMin}
-	return d, d.Validate()
+	if err := d.Validate(); err != nil {
+		return d, err
+	}
+	d.fast = d.law().fast()
+	return d, nil
 }
 
 // Validate reports whether the parameters describe a proper distribution.
@@ -129,7 +174,12 @@ func (d MassRatio) CDF(q float64) float64 { return d.law().cdf(q) }
 func (d MassRatio) Quantile(p float64) float64 { return d.law().quantile(p) }
 
 // Rand draws a mass ratio using src.
-func (d MassRatio) Rand(src *rand.Rand) float64 { return d.law().quantile(src.Float64()) }
+func (d MassRatio) Rand(src *rand.Rand) float64 {
+	if d.fast != nil {
+		return d.fast.quantile(src.Float64())
+	}
+	return d.law().quantile(src.Float64())
+}
 
 // SanaPeriod is the orbital-period distribution of Sana et al. (2012,
 // Science 337, 444): with x = log10(P/day), f(x) ∝ x^Exponent on
@@ -143,12 +193,17 @@ type SanaPeriod struct {
 	LogPMin  float64 // log10 of the shortest period in days, >= 0
 	LogPMax  float64 // log10 of the longest period in days, > LogPMin
 	Exponent float64 // power-law index of f(log10 P)
+	fast     *fastLaw
 }
 
 // NewSanaPeriod returns a validated SanaPeriod.
 func NewSanaPeriod(logPMin, logPMax, exponent float64) (SanaPeriod, error) {
 	d := SanaPeriod{LogPMin: logPMin, LogPMax: logPMax, Exponent: exponent}
-	return d, d.Validate()
+	if err := d.Validate(); err != nil {
+		return d, err
+	}
+	d.fast = d.law().fast()
+	return d, nil
 }
 
 // Validate reports whether the parameters describe a proper distribution.
@@ -190,7 +245,12 @@ func (d SanaPeriod) CDF(p float64) float64 {
 func (d SanaPeriod) Quantile(u float64) float64 { return math.Pow(10, d.law().quantile(u)) }
 
 // Rand draws an orbital period in days using src.
-func (d SanaPeriod) Rand(src *rand.Rand) float64 { return d.Quantile(src.Float64()) }
+func (d SanaPeriod) Rand(src *rand.Rand) float64 {
+	if d.fast != nil {
+		return math.Exp(math.Ln10 * d.fast.quantile(src.Float64()))
+	}
+	return d.Quantile(src.Float64())
+}
 
 // OpikSeparation is the separation distribution of Öpik (1924, Publ. Tartu
 // Obs. 25, 6), flat in log a: f(a) ∝ 1/a on [AMin, AMax], a in AU.
@@ -300,12 +360,17 @@ func (Circular) Rand(*rand.Rand) float64 { return 0 }
 type PowerLawEcc struct {
 	Exponent float64 // power-law index, > -1
 	EMax     float64 // largest eccentricity, 0 < EMax <= 1
+	fast     *fastLaw
 }
 
 // NewPowerLawEcc returns a validated PowerLawEcc.
 func NewPowerLawEcc(exponent, eMax float64) (PowerLawEcc, error) {
 	d := PowerLawEcc{Exponent: exponent, EMax: eMax}
-	return d, d.Validate()
+	if err := d.Validate(); err != nil {
+		return d, err
+	}
+	d.fast = d.law().fast()
+	return d, nil
 }
 
 // Validate reports whether the parameters describe a proper distribution.
@@ -331,4 +396,9 @@ func (d PowerLawEcc) CDF(e float64) float64 { return d.law().cdf(e) }
 func (d PowerLawEcc) Quantile(p float64) float64 { return d.law().quantile(p) }
 
 // Rand draws an eccentricity using src.
-func (d PowerLawEcc) Rand(src *rand.Rand) float64 { return d.law().quantile(src.Float64()) }
+func (d PowerLawEcc) Rand(src *rand.Rand) float64 {
+	if d.fast != nil {
+		return d.fast.quantile(src.Float64())
+	}
+	return d.law().quantile(src.Float64())
+}

@@ -55,3 +55,8 @@ func BenchmarkWriteCatalogue(b *testing.B) {
 func itoa(n int) string {
 	return strconv.Itoa(n)
 }
+
+// BenchmarkEngineBinary1Worker is the binary engine on one worker, for profiling.
+func BenchmarkEngineBinary1Worker(b *testing.B) {
+	benchEngine(b, 1<<19, "binary_fraction=1", "workers=1")
+}

@@ -86,7 +86,7 @@ type pairStar struct {
 // its initial mass until its own end (its winds come mostly after the main sequence). A star whose
 // largest radius would fill its Roche lobe at periastron makes the system "interacting": it is
 // written with its initial parameters (or dropped: binary.interacting) and not evolved further.
-func (e *Engine) evolveSystem(id int64, i int, out *catalog.Batch, t *Tally, src *rand.Rand, drop *bool) error {
+func (e *Engine) evolveSystem(id int64, i int, out *catalog.Batch, t *Tally, src *rand.Rand, cache *coreCache, drop *bool) error {
 	b := e.bin
 	m1 := e.sampler.Rand(src)
 	z := e.metal.draw(src)
@@ -94,7 +94,7 @@ func (e *Engine) evolveSystem(id int64, i int, out *catalog.Batch, t *Tally, src
 	e.col.putSystem(out, i, id, z)
 	oc := &e.col.orbit
 	if !isBinary {
-		s, err := e.phys.Star(m1, z, src)
+		s, err := e.phys.star(m1, z, src, cache)
 		if err != nil {
 			return err
 		}
@@ -119,11 +119,11 @@ func (e *Engine) evolveSystem(id int64, i int, out *catalog.Batch, t *Tally, src
 		p0 = binary.PeriodDays(a0, m1+m2)
 	}
 	e0 := b.eccentricity(src)
-	s1, err := e.phys.Star(m1, z, src)
+	s1, err := e.phys.star(m1, z, src, cache)
 	if err != nil {
 		return err
 	}
-	s2, err := e.phys.Star(m2, z, src)
+	s2, err := e.phys.star(m2, z, src, cache)
 	if err != nil {
 		return fmt.Errorf("companion: %w", err)
 	}

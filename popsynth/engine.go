@@ -213,15 +213,16 @@ func (e *Engine) fillBatch(b int64, out *catalog.Batch, t *Tally) error {
 	count := min(int64(BatchSize), e.cfg.Systems-first)
 	out.Reset(int(count))
 	src := Stream(e.cfg.Seed, uint64(b))
+	var cache coreCache
 	rows := 0 // rows kept so far; a dropped system's row is overwritten by the next one
 	for i := range int(count) {
 		id := first + int64(i)
 		var err error
 		drop := false
 		if e.bin != nil {
-			err = e.evolveSystem(id, rows, out, t, src, &drop)
+			err = e.evolveSystem(id, rows, out, t, src, &cache, &drop)
 		} else {
-			err = e.evolveSingle(id, rows, out, t, src)
+			err = e.evolveSingle(id, rows, out, t, src, &cache)
 		}
 		if err != nil {
 			return fmt.Errorf("system %d: %w", id, err)
@@ -235,10 +236,10 @@ func (e *Engine) fillBatch(b int64, out *catalog.Batch, t *Tally) error {
 	return nil
 }
 
-func (e *Engine) evolveSingle(id int64, i int, out *catalog.Batch, t *Tally, src *rand.Rand) error {
+func (e *Engine) evolveSingle(id int64, i int, out *catalog.Batch, t *Tally, src *rand.Rand, cache *coreCache) error {
 	m := e.sampler.Rand(src)
 	z := e.metal.draw(src)
-	s, err := e.phys.Star(m, z, src)
+	s, err := e.phys.star(m, z, src, cache)
 	if err != nil {
 		return err
 	}

@@ -82,7 +82,7 @@ func (c Config) CoreModel() (remnant.CoreModel, error) {
 		if err := b.Validate(); err != nil {
 			return nil, fmt.Errorf("config: core.builtin: %w", err)
 		}
-		return b, nil
+		return b.Prepare(), nil
 	case "table":
 		rows, err := ReadStellarTable(c.Core.Table)
 		if err != nil {
@@ -177,8 +177,36 @@ func (s *StarResult) KickSpeed() float64 {
 // Star evolves one star of initial mass m (Msun) and metallicity z to its remnant, drawing its kick
 // from src. A star whose lifetime exceeds TimeLimitMyr is still a star (type star, fate alive).
 func (p *Physics) Star(m, z float64, src *rand.Rand) (StarResult, error) {
+	return p.star(m, z, src, nil)
+}
+
+// coreCache holds the builtin core model at the metallicity of the last star a worker evolved, so
+// that a run at one metallicity (or a few) computes the metallicity factors once per batch.
+type coreCache struct {
+	bz remnant.BuiltinZ
+	ok bool
+}
+
+// core returns the core of a star of mass m and metallicity z, using and updating cache when the
+// core model is the builtin one.
+func (p *Physics) core(m, z float64, cache *coreCache) (remnant.Core, error) {
+	b, builtin := p.Core.(*remnant.Prepared)
+	if !builtin || cache == nil {
+		return p.Core.Core(m, z)
+	}
+	if !cache.ok || cache.bz.Metallicity() != z {
+		bz, err := b.AtMetallicity(z)
+		if err != nil {
+			return remnant.Core{}, err
+		}
+		cache.bz, cache.ok = bz, true
+	}
+	return cache.bz.Core(m)
+}
+
+func (p *Physics) star(m, z float64, src *rand.Rand, cache *coreCache) (StarResult, error) {
 	var s StarResult
-	c, err := p.Core.Core(m, z)
+	c, err := p.core(m, z, cache)
 	if err != nil {
 		return s, err
 	}

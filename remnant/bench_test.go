@@ -35,6 +35,32 @@ func BenchmarkBuiltinCore(b *testing.B) {
 	}
 }
 
+// BenchmarkPreparedCore is the engine's path when every star has its own metallicity.
+func BenchmarkPreparedCore(b *testing.B) {
+	m := DefaultBuiltin().Prepare()
+	b.ReportAllocs()
+	i := 0
+	for b.Loop() {
+		s := benchStars[i&1023]
+		sinkCore, _ = m.Core(s[0], s[1])
+		i++
+	}
+}
+
+// BenchmarkBuiltinZCore is the engine's path for a fixed metallicity (or a list of them).
+func BenchmarkBuiltinZCore(b *testing.B) {
+	bz, err := DefaultBuiltin().Prepare().AtMetallicity(0.0142)
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	i := 0
+	for b.Loop() {
+		sinkCore, _ = bz.Core(benchStars[i&1023][0])
+		i++
+	}
+}
+
 func BenchmarkTableCore(b *testing.B) {
 	masses := []float64{8, 10, 12, 15, 20, 25, 30, 40, 50, 60, 80, 100, 120, 150, 200}
 	metals := []float64{1e-4, 3e-4, 1e-3, 3e-3, 0.006, 0.01, 0.0142, 0.02, 0.03}

@@ -336,23 +336,126 @@ func checkStar(m, z float64) error {
 // Core returns the end state of a star of initial mass m (Msun) and
 // metallicity z (metal mass fraction), by the relations in the Builtin doc
 // comment. It returns an error if m is not a finite number > 0 or z is not in
-// (0, 1). It does not allocate.
+// (0, 1). It does not allocate. To evolve many stars, Prepare the model once:
+// Prepared.Core gives the same answers faster.
 func (b Builtin) Core(m, z float64) (Core, error) {
+	p := b.prepare()
+	return p.Core(m, z)
+}
+
+// Prepared is the builtin model with the constants that depend only on its
+// parameters computed once. It is read-only and safe for concurrent use; it
+// implements CoreModel.
+type Prepared struct {
+	b                     Builtin
+	lnMSPivot, lnEnvPivot float64
+	giantBase             float64 // GiantRadius GiantPivotMass^-GiantRadiusExponent
+	lifetimeFactor        float64 // 1 + HeBurningFraction
+	sameRadiusExponent    bool    // MSRadiusExponent == GiantRadiusExponent: one power serves both radii
+	eruptInvWidth         float64
+	noExpansionInvWidth   float64
+}
+
+// Prepare returns b with its constants computed once, for evolving many
+// stars. Later changes to b do not affect it.
+func (b Builtin) Prepare() *Prepared {
+	p := b.prepare()
+	return &p
+}
+
+func (b Builtin) prepare() Prepared {
+	return Prepared{
+		b:                   b,
+		lnMSPivot:           math.Log(b.MSWindPivotMass),
+		lnEnvPivot:          math.Log(b.EnvelopePivotMass),
+		giantBase:           b.GiantRadius * math.Exp(-b.GiantRadiusExponent*math.Log(b.GiantPivotMass)),
+		lifetimeFactor:      1 + b.HeBurningFraction,
+		sameRadiusExponent:  b.MSRadiusExponent == b.GiantRadiusExponent,
+		eruptInvWidth:       1 / (b.EruptionFullMass - b.EruptionMinMass),
+		noExpansionInvWidth: 1 / (b.NoExpansionStripping - 1),
+	}
+}
+
+// Builtin returns the parameters of p.
+func (p *Prepared) Builtin() Builtin { return p.b }
+
+// Core returns the end state of a star of initial mass m (Msun) and
+// metallicity z, as Builtin.Core does.
+func (p *Prepared) Core(m, z float64) (Core, error) {
 	if err := checkStar(m, z); err != nil {
 		return Core{}, err
 	}
-	lnm := math.Log(m)
+	bz := p.atMetallicity(z)
+	return bz.core(m), nil
+}
+
+// BuiltinZ is the builtin model at one metallicity, with every factor that
+// depends only on the metallicity computed once. Build it with
+// Prepared.AtMetallicity; its Core gives the same answers as Builtin.Core at
+// that metallicity.
+type BuiltinZ struct {
+	p          *Prepared
+	z          float64
+	zf         float64 // (Z/Zsun)^WindMetallicityExponent
+	wrLimit    float64 // S = WRLimitMass zf^-WRLimitExponent
+	giantScale float64 // giantBase (Z/Zsun)^GiantMetallicityExponent
+}
+
+// Metallicity returns the metallicity Z of bz.
+func (bz *BuiltinZ) Metallicity() float64 { return bz.z }
+
+// AtMetallicity returns the model at metallicity z (metal mass fraction), or
+// an error if z is not in (0, 1).
+func (p *Prepared) AtMetallicity(z float64) (BuiltinZ, error) {
+	if err := checkStar(1, z); err != nil {
+		return BuiltinZ{}, err
+	}
+	return p.atMetallicity(z), nil
+}
+
+func (p *Prepared) atMetallicity(z float64) BuiltinZ {
+	b := &p.b
 	lnz := math.Log(z / b.SolarMetallicity)
 	zf := math.Exp(b.WindMetallicityExponent * lnz)
+	return BuiltinZ{
+		p: p, z: z, zf: zf,
+		wrLimit:    b.WRLimitMass * pow(zf, -b.WRLimitExponent),
+		giantScale: p.giantBase * math.Exp(b.GiantMetallicityExponent*lnz),
+	}
+}
 
-	he0 := min(b.HeCoreCoefficient*math.Exp(b.HeCoreExponent*lnm), b.HeCoreMaxFraction*m)
+// Core returns the end state of a star of initial mass m (Msun) at bz's
+// metallicity, or an error if m is not a finite number > 0.
+func (bz *BuiltinZ) Core(m float64) (Core, error) {
+	if err := checkStar(m, bz.z); err != nil {
+		return Core{}, err
+	}
+	return bz.core(m), nil
+}
 
-	fH := min(b.MSWindMaxFraction, b.MSWindFraction*zf*pow(m/b.MSWindPivotMass, b.MSWindExponent))
+// powLn returns x^e given ln x, with the shortcuts of pow for common exponents.
+func powLn(x, lnx, e float64) float64 {
+	switch e {
+	case 1, -1, 2, -2, 1.5, 6:
+		return pow(x, e)
+	}
+	return math.Exp(e * lnx)
+}
+
+func (bz *BuiltinZ) core(m float64) Core {
+	p := bz.p
+	b := &p.b
+	lnm := math.Log(m)
+	zf := bz.zf
+
+	he0 := min(b.HeCoreCoefficient*powLn(m, lnm, b.HeCoreExponent), b.HeCoreMaxFraction*m)
+
+	fH := min(b.MSWindMaxFraction, b.MSWindFraction*zf*powLn(m/b.MSWindPivotMass, lnm-p.lnMSPivot, b.MSWindExponent))
 	m1 := m * (1 - fH)
 	he := min(he0, m1)
 
-	s := b.EnvelopeLossFraction*zf*pow(m/b.EnvelopePivotMass, b.EnvelopeExponent) +
-		clamp01((m-b.EruptionMinMass)/(b.EruptionFullMass-b.EruptionMinMass))
+	s := b.EnvelopeLossFraction*zf*powLn(m/b.EnvelopePivotMass, lnm-p.lnEnvPivot, b.EnvelopeExponent) +
+		clamp01((m-b.EruptionMinMass)*p.eruptInvWidth)
 
 	// Wolf-Rayet limit: He (1 + r)^(-1/n), r = (He/S)^n, S = WRLimitMass zf^-WRLimitExponent.
 	// For r < 1e-4 the binomial series to r^2 is used, saving a log and an
@@ -360,7 +463,7 @@ func (b Builtin) Core(m, z float64) (Core, error) {
 	// r^3 (n+1)(2n+1)/(6n^3), 7e-14 for the default n = 6.
 	n := b.WRSharpness
 	var heF float64
-	if r := pow(he/(b.WRLimitMass*pow(zf, -b.WRLimitExponent)), n); r < 1e-4 {
+	if r := pow(he/bz.wrLimit, n); r < 1e-4 {
 		heF = he * (1 - r/n + (n+1)/(2*n*n)*r*r)
 	} else {
 		heF = he * pow(1+r, -1/n)
@@ -374,20 +477,25 @@ func (b Builtin) Core(m, z float64) (Core, error) {
 	x := pow(heF/b.COTransitionMass, b.COTransitionExponent)
 	co := heF * (b.COBaseFraction + b.COExtraFraction*x/(1+x))
 
-	rMS := b.MSRadiusCoefficient * math.Exp(b.MSRadiusExponent*lnm)
-	rG := b.GiantRadius * math.Exp(b.GiantRadiusExponent*(lnm-math.Log(b.GiantPivotMass))+b.GiantMetallicityExponent*lnz)
-	w := clamp01((b.NoExpansionStripping - s) / (b.NoExpansionStripping - 1))
+	mMS := powLn(m, lnm, b.MSRadiusExponent)
+	mG := mMS
+	if !p.sameRadiusExponent {
+		mG = powLn(m, lnm, b.GiantRadiusExponent)
+	}
+	rMS := b.MSRadiusCoefficient * mMS
+	rG := bz.giantScale * mG
+	w := clamp01((b.NoExpansionStripping - s) * p.noExpansionInvWidth)
 	rMax := rMS + w*max(0, rG-rMS)
 
 	return Core{
 		InitialMass: m,
-		Metallicity: z,
-		LifetimeMyr: MainSequenceLifetime(m) * (1 + b.HeBurningFraction),
+		Metallicity: bz.z,
+		LifetimeMyr: MainSequenceLifetime(m) * p.lifetimeFactor,
 		FinalMass:   mf,
 		HeCoreMass:  heF,
 		COCoreMass:  co,
 		MaxRadius:   rMax,
-	}, nil
+	}
 }
 
 func clamp01(x float64) float64 {
