@@ -4,6 +4,9 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"sort"
+
+	"gonum.org/v1/gonum/integrate/quad"
 
 	"github.com/corefall/corefall/binary"
 	"github.com/corefall/corefall/imf"
@@ -13,7 +16,9 @@ import (
 
 // binarySetup holds the initial-binary distributions of a run.
 type binarySetup struct {
-	fraction float64
+	fraction float64   // binary fraction, when it does not depend on mass
+	fracLogM []float64 // log10 of binary.fraction_masses, when it does
+	fracVals []float64
 	q        binary.MassRatio
 	period   *binary.SanaPeriod     // sana2012, else nil
 	sep      *binary.OpikSeparation // opik, else nil
@@ -26,6 +31,10 @@ type binarySetup struct {
 func newBinarySetup(cfg Config) (*binarySetup, error) {
 	c := cfg.Binary
 	s := &binarySetup{fraction: cfg.BinaryFraction, ecc: c.Eccentricity, eMax: c.EccentricityMax, keepRLOF: c.Interacting == "keep"}
+	for _, m := range c.FractionMasses {
+		s.fracLogM = append(s.fracLogM, math.Log10(m))
+	}
+	s.fracVals = c.FractionValues
 	var err error
 	if s.q, err = binary.NewMassRatio(c.QExponent, c.QMin); err != nil {
 		return nil, fmt.Errorf("config: binary.q_exponent/binary.q_min: %w", err)
@@ -52,10 +61,50 @@ func newBinarySetup(cfg Config) (*binarySetup, error) {
 	return s, nil
 }
 
+// fractionAt returns the binary fraction of primaries of mass m (Msun).
+func (s *binarySetup) fractionAt(m float64) float64 {
+	if s.fracLogM == nil {
+		return s.fraction
+	}
+	x := math.Log10(m)
+	n := len(s.fracLogM)
+	switch {
+	case x <= s.fracLogM[0]:
+		return s.fracVals[0]
+	case x >= s.fracLogM[n-1]:
+		return s.fracVals[n-1]
+	}
+	j := sort.SearchFloat64s(s.fracLogM, x) // fracLogM[j-1] < x <= fracLogM[j]
+	t := (x - s.fracLogM[j-1]) / (s.fracLogM[j] - s.fracLogM[j-1])
+	return s.fracVals[j-1] + t*(s.fracVals[j]-s.fracVals[j-1])
+}
+
 // meanCompanionMass returns the mean companion mass per system (Msun) when primaries follow f:
-// binary_fraction x E[q] x mean primary mass (q is drawn independently of the primary's mass).
+// E[q] x the integral of fraction(m) m f(m) dm (q is drawn independently of the primary's mass).
+// For a constant fraction that is fraction x E[q] x mean mass; a mass-dependent fraction is
+// integrated numerically (Gauss-Legendre in log m on the segments between the table's masses, to
+// ~1e-10 relative: the integrand is smooth on each segment).
 func (s *binarySetup) meanCompanionMass(f imf.IMF) float64 {
-	return s.fraction * massRatioMean(s.q.Kappa, s.q.QMin) * f.Mean()
+	eq := massRatioMean(s.q.Kappa, s.q.QMin)
+	if s.fracLogM == nil {
+		return s.fraction * eq * f.Mean()
+	}
+	edges := []float64{f.Min()}
+	for _, lm := range s.fracLogM {
+		if m := math.Pow(10, lm); m > f.Min() && m < f.Max() {
+			edges = append(edges, m)
+		}
+	}
+	edges = append(edges, f.Max())
+	var total float64
+	for i := 1; i < len(edges); i++ {
+		a, b := math.Log(edges[i-1]), math.Log(edges[i])
+		total += quad.Fixed(func(u float64) float64 {
+			m := math.Exp(u)
+			return s.fractionAt(m) * m * m * f.Prob(m) // dm = m du
+		}, a, b, 64, nil, 0)
+	}
+	return eq * total
 }
 
 // eccentricity draws an initial eccentricity.
@@ -90,7 +139,7 @@ func (e *Engine) evolveSystem(id int64, i int, out *catalog.Batch, t *Tally, src
 	b := e.bin
 	m1 := e.sampler.Rand(src)
 	z := e.metal.draw(src)
-	isBinary := src.Float64() < b.fraction
+	isBinary := src.Float64() < b.fractionAt(m1)
 	e.col.putSystem(out, i, id, z)
 	oc := &e.col.orbit
 	if !isBinary {

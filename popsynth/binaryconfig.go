@@ -20,9 +20,35 @@ type BinaryConfig struct {
 	// Interacting says what to do with systems whose star would fill its Roche lobe: keep (write
 	// them with outcome "interacting" and their initial parameters) or drop.
 	Interacting string `mapstructure:"interacting" yaml:"interacting"`
+	// FractionMasses and FractionValues, when given, make the binary fraction depend on the primary
+	// mass: linear in log mass between the listed masses (Msun), constant beyond the ends. They
+	// replace binary_fraction, which must then be 0.
+	FractionMasses []float64 `mapstructure:"fraction_masses" yaml:"fraction_masses"`
+	FractionValues []float64 `mapstructure:"fraction_values" yaml:"fraction_values"`
+}
+
+// binariesOn reports whether a configuration makes any binaries.
+func (c Config) binariesOn() bool {
+	return c.BinaryFraction > 0 || len(c.Binary.FractionMasses) > 0
 }
 
 func (c BinaryConfig) validate(fraction float64) error {
+	if len(c.FractionMasses) != len(c.FractionValues) {
+		return bad("binary.fraction_values", c.FractionValues, "needs one value per mass of binary.fraction_masses (%d)", len(c.FractionMasses))
+	}
+	if len(c.FractionMasses) > 0 && fraction != 0 {
+		return bad("binary_fraction", fraction, "must be 0 when binary.fraction_masses gives a mass-dependent fraction (set one or the other)")
+	}
+	for i, m := range c.FractionMasses {
+		if !finite(m) || m <= 0 || (i > 0 && m <= c.FractionMasses[i-1]) {
+			return bad("binary.fraction_masses", c.FractionMasses, "masses must be finite, > 0 and strictly increasing")
+		}
+	}
+	for _, f := range c.FractionValues {
+		if !(f >= 0 && f <= 1) {
+			return bad("binary.fraction_values", c.FractionValues, "every fraction must lie in [0, 1]")
+		}
+	}
 	if !finite(c.QExponent) || c.QExponent < -3 || c.QExponent > 3 {
 		return bad("binary.q_exponent", c.QExponent, "must lie in [-3, 3] (0 is uniform, -0.1 after Sana et al. 2012)")
 	}

@@ -21,7 +21,7 @@ type Engine struct {
 	sampler imf.IMF // the IMF restricted to [sample_min, sample_max]
 	metal   metallicitySampler
 	phys    Physics
-	bin     *binarySetup // nil when binary_fraction is 0
+	bin     *binarySetup // nil when the run makes no binaries
 	schema  *catalog.Schema
 	col     columns
 }
@@ -45,7 +45,7 @@ func NewEngine(cfg Config) (*Engine, error) {
 	if err := e.checkCoverage(); err != nil {
 		return nil, err
 	}
-	if cfg.BinaryFraction > 0 {
+	if cfg.binariesOn() {
 		if e.bin, err = newBinarySetup(cfg); err != nil {
 			return nil, err
 		}
@@ -63,7 +63,7 @@ func NewEngine(cfg Config) (*Engine, error) {
 func (e *Engine) checkCoverage() error {
 	zlo, zhi := e.metal.bounds()
 	mlo, mhi := e.cfg.IMF.SampleMin, e.cfg.IMF.SampleMax
-	if e.cfg.BinaryFraction > 0 {
+	if e.cfg.binariesOn() {
 		mlo = math.Min(mlo, e.cfg.IMF.SampleMin*e.cfg.Binary.QMin)
 	}
 	for _, z := range []float64{zlo, zhi} {

@@ -179,6 +179,42 @@ func TestMassRepresented(t *testing.T) {
 	if got, w := eB.MassRepresented(), want*(1+0.5*0.55); math.Abs(got-w) > 1e-9*w {
 		t.Errorf("with binaries: mass represented %v, want %v", got, w)
 	}
+
+	// A mass-dependent binary fraction: none below 20 Msun, all above (a step, as linear in log
+	// mass between 20 and 20.00000002). The companions then add E[q] * integral_20^100 m p(m) dm,
+	// the closed-form Salpeter mass integral over the whole IMF's normalisation.
+	cfgS := load(t, "systems=1000", "imf.law=salpeter", "imf.min=0.1", "imf.max=100", "imf.sample_max=100",
+		"binary.fraction_masses=[20, 20.00000002]", "binary.fraction_values=[0, 1]", "binary.q_exponent=0", "binary.q_min=0.1")
+	eS, err := NewEngine(cfgS)
+	if err != nil {
+		t.Fatal(err)
+	}
+	meanMass := mass(0.1, 100) / num(0.1, 100)
+	companions := 0.55 * mass(20, 100) / num(0.1, 100)
+	if got, w := eS.MassRepresented(), 1000/(num(8, 100)/num(0.1, 100))*(meanMass+companions); math.Abs(got-w) > 1e-7*w {
+		t.Errorf("step binary fraction: mass represented %v, want %v", got, w)
+	}
+	// And the sampled systems follow the step: binaries above 20 Msun only.
+	path := filepath.Join(t.TempDir(), "s.parquet")
+	runTo(t, load(t, "systems=5000", "binary.fraction_masses=[20, 20.00000002]", "binary.fraction_values=[0, 1]"), path)
+	r, err := catalog.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer r.Close()
+	for {
+		b, err := r.Next()
+		if err != nil {
+			break
+		}
+		m0, oc := b.Cols[b.Schema.Index("initial_mass")].F32, b.Cols[b.Schema.Index("outcome")].Cat
+		for i := range b.Len {
+			single := oc[i] == catalog.OutcomeSingle
+			if (m0[i] < 20) != single {
+				t.Fatalf("primary of %v Msun: single = %v with a step binary fraction at 20 Msun", m0[i], single)
+			}
+		}
+	}
 }
 
 // TestSampledMasses: the primaries in a catalogue follow the restricted IMF (KS statistic against

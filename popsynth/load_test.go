@@ -99,6 +99,9 @@ func TestBadInput(t *testing.T) {
 		{"missing table", Sources{Set: []string{"core.model=table"}}, []string{"core.table"}},
 		{"value as section", Sources{File: writeFile(t, "d.yaml", "systems:\n  n: 5\n")}, []string{"systems", "value"}},
 		{"section as value", Sources{File: writeFile(t, "e.yaml", "imf: 5\n")}, []string{"imf", "section"}},
+		{"both binary fractions", Sources{Set: []string{"binary_fraction=0.5", "binary.fraction_masses=[10]", "binary.fraction_values=[0.5]"}}, []string{"binary_fraction", "fraction_masses"}},
+		{"fraction table lengths", Sources{Set: []string{"binary.fraction_masses=[10, 20]", "binary.fraction_values=[0.5]"}}, []string{"binary.fraction_values"}},
+		{"fraction above 1", Sources{Set: []string{"binary.fraction_masses=[10]", "binary.fraction_values=[1.5]"}}, []string{"binary.fraction_values", "[0, 1]"}},
 	}
 	for _, c := range cases {
 		_, err := Load(c.src)
