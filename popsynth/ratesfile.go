@@ -59,14 +59,16 @@ func CatalogueRates(path string, opt RatesOptions) (rates.Result, error) {
 	// metallicities, the part drawn at the row's value (counted in a first pass).
 	rowsAt := map[float32]int64{}
 	var rows int64
-	if err := scanCatalogue(path, func(b *catalog.Batch, c *rateColumns) error {
-		for i := range b.Len {
-			rowsAt[b.Cols[c.z].F32[i]]++
+	if mc.Sampling == "list" {
+		if err := scanCatalogue(path, func(b *catalog.Batch, c *rateColumns) error {
+			for i := range b.Len {
+				rowsAt[b.Cols[c.z].F32[i]]++
+			}
+			rows += int64(b.Len)
+			return nil
+		}); err != nil {
+			return rates.Result{}, err
 		}
-		rows += int64(b.Len)
-		return nil
-	}); err != nil {
-		return rates.Result{}, err
 	}
 	weight := func(z float32) float64 {
 		if mc.Sampling == "list" {

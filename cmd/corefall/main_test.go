@@ -176,3 +176,35 @@ func TestConfigCommands(t *testing.T) {
 		t.Errorf("config check: %d %q", code, out)
 	}
 }
+
+// TestRatesCommand checks the JSON keys fixed by the rates issue and the CSV form.
+func TestRatesCommand(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "c.parquet")
+	if code, _, errs := runCLI(t, "run", "--quiet", "--set", "systems=20000", "--set", "binary_fraction=0.5", "-o", path); code != 0 {
+		t.Fatal(errs)
+	}
+	code, out, errs := runCLI(t, "rates", path, "--z-max", "2", "--dz", "0.5", "--json")
+	if code != 0 {
+		t.Fatal(errs)
+	}
+	m := decodeJSON(t, out)
+	hasKeys(t, "rates", m, "z", "rates", "uncertainty", "units", "cosmology", "sfr")
+	kinds := []string{"ns_formation", "bh_formation", "bbh_merger", "bhns_merger", "nsns_merger"}
+	hasKeys(t, "rates.rates", m["rates"].(map[string]any), kinds...)
+	hasKeys(t, "rates.uncertainty", m["uncertainty"].(map[string]any), kinds...)
+	hasKeys(t, "rates.cosmology", m["cosmology"].(map[string]any), "h0", "omega_m", "age_gyr")
+	if z := m["z"].([]any); len(z) != 5 || z[0].(float64) != 0 {
+		t.Errorf("z grid %v, want 0, 0.5, ..., 2", z)
+	}
+	if m["units"] != "Gpc^-3 yr^-1" {
+		t.Errorf("units %v", m["units"])
+	}
+	code, out, _ = runCLI(t, "rates", path, "--z-max", "1", "--dz", "0.5", "--csv")
+	if code != 0 || !strings.HasPrefix(out, "z,ns_formation,ns_formation_uncertainty") || strings.Count(out, "\n") != 4 {
+		t.Errorf("rates --csv:\n%s", out)
+	}
+	code, _, errs = runCLI(t, "rates", path, "--sfr", "nonsense")
+	if code != exitError || !strings.Contains(errs, "--sfr") {
+		t.Errorf("bad --sfr: %d %s", code, errs)
+	}
+}

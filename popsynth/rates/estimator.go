@@ -342,7 +342,9 @@ func RedshiftGrid(zmax, dz float64) ([]float64, error) {
 	}
 	zs := make([]float64, int(steps)+1)
 	for i := range zs {
-		zs[i] = float64(i) * dz
+		// Rounded to 1e-9 so that a step such as 0.05 gives 0.15, not 0.15000000000000002, in
+		// printed output; the shift is far below any redshift resolution that matters.
+		zs[i] = math.Round(float64(i)*dz*1e9) / 1e9
 	}
 	return zs, nil
 }
