@@ -143,8 +143,8 @@ func (e *Engine) evolveSystem(id int64, i int, out *catalog.Batch, t *Tally, src
 	e.col.putSystem(out, i, id, z)
 	oc := &e.col.orbit
 	if !isBinary {
-		s, err := e.phys.star(m1, z, src, cache)
-		if err != nil {
+		var s StarResult
+		if err := e.phys.star(&s, m1, z, src, cache); err != nil {
 			return err
 		}
 		e.col.star.put(out, i, &s)
@@ -168,12 +168,11 @@ func (e *Engine) evolveSystem(id int64, i int, out *catalog.Batch, t *Tally, src
 		p0 = binary.PeriodDays(a0, m1+m2)
 	}
 	e0 := b.eccentricity(src)
-	s1, err := e.phys.star(m1, z, src, cache)
-	if err != nil {
+	var s1, s2 StarResult
+	if err := e.phys.star(&s1, m1, z, src, cache); err != nil {
 		return err
 	}
-	s2, err := e.phys.star(m2, z, src, cache)
-	if err != nil {
+	if err := e.phys.star(&s2, m2, z, src, cache); err != nil {
 		return fmt.Errorf("companion: %w", err)
 	}
 	setF32(out, oc.a0, i, a0)

@@ -239,8 +239,8 @@ func (e *Engine) fillBatch(b int64, out *catalog.Batch, t *Tally) error {
 func (e *Engine) evolveSingle(id int64, i int, out *catalog.Batch, t *Tally, src *rand.Rand, cache *coreCache) error {
 	m := e.sampler.Rand(src)
 	z := e.metal.draw(src)
-	s, err := e.phys.star(m, z, src, cache)
-	if err != nil {
+	var s StarResult
+	if err := e.phys.star(&s, m, z, src, cache); err != nil {
 		return err
 	}
 	e.col.putSystem(out, i, id, z)

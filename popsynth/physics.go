@@ -177,7 +177,9 @@ func (s *StarResult) KickSpeed() float64 {
 // Star evolves one star of initial mass m (Msun) and metallicity z to its remnant, drawing its kick
 // from src. A star whose lifetime exceeds TimeLimitMyr is still a star (type star, fate alive).
 func (p *Physics) Star(m, z float64, src *rand.Rand) (StarResult, error) {
-	return p.star(m, z, src, nil)
+	var s StarResult
+	err := p.star(&s, m, z, src, nil)
+	return s, err
 }
 
 // coreCache holds the builtin core model at the metallicity of the last star a worker evolved, so
@@ -204,18 +206,19 @@ func (p *Physics) core(m, z float64, cache *coreCache) (remnant.Core, error) {
 	return cache.bz.Core(m)
 }
 
-func (p *Physics) star(m, z float64, src *rand.Rand, cache *coreCache) (StarResult, error) {
-	var s StarResult
+// star evolves one star into *s (see Star), with the core model cached per metallicity in cache.
+func (p *Physics) star(s *StarResult, m, z float64, src *rand.Rand, cache *coreCache) error {
 	c, err := p.core(m, z, cache)
 	if err != nil {
-		return s, err
+		return err
 	}
 	s.Core = c
 	if c.LifetimeMyr > p.TimeLimitMyr {
 		s.Remnant = remnant.Remnant{Type: remnant.Star, Fate: remnant.Alive}
-		return s, nil
+		s.Kick = [3]float64{}
+		return nil
 	}
 	s.Remnant = p.Prescription.Decide(c)
 	s.Kick = p.Kicks.Draw(s.Remnant, src)
-	return s, nil
+	return nil
 }

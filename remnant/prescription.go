@@ -118,7 +118,7 @@ func (p Prescription) Validate() error {
 // c.FinalMass. If c.InitialMass is 0 (unknown), the CO-core mass capped at
 // ChandrasekharMass is used instead; if c.FinalMass is 0 (unknown), that cap
 // is not applied.
-func (p Prescription) WhiteDwarfMass(c Core) float64 {
+func (p *Prescription) WhiteDwarfMass(c Core) float64 {
 	m := c.COCoreMass
 	if c.InitialMass > 0 {
 		m = p.WDSlope*c.InitialMass + p.WDIntercept
@@ -161,7 +161,7 @@ func (p Prescription) WhiteDwarfMass(c Core) float64 {
 //
 // Decide assumes p is valid and c is the output of a CoreModel (positive,
 // finite masses). It does not allocate.
-func (p Prescription) Decide(c Core) Remnant {
+func (p *Prescription) Decide(c Core) Remnant {
 	mco, mfin := c.COCoreMass, c.FinalMass
 	if mco < p.CollapseMinCO {
 		m := p.WhiteDwarfMass(c)
