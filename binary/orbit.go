@@ -55,5 +55,21 @@ func RocheLobe(q float64) float64 {
 // orbit o, reaches its Roche lobe (Eggleton 1983) at periastron, where the
 // separation is o.A (1 - o.E).
 func FillsRocheLobe(radiusRsun float64, o Orbit, mDonor, mOther float64) bool {
-	return radiusRsun*rSunAU >= RocheLobe(mDonor/mOther)*o.Periastron()
+	r, ap := radiusRsun*rSunAU, o.Periastron()
+	q := mDonor / mOther
+	// r_L/a rises with q from 0 to 0.49/0.6: two cheap decisions before the full formula.
+	switch {
+	case r >= rocheLobeMax*ap:
+		return true
+	case q >= 1 && r < rocheLobeEqual*ap:
+		return false
+	}
+	return r >= RocheLobe(q)*ap
 }
+
+// rocheLobeMax is the limit of RocheLobe as q -> infinity, and rocheLobeEqual its value at q = 1,
+// 0.49 / (0.6 + ln 2); RocheLobe lies between them for every q >= 1 (it rises with q).
+const (
+	rocheLobeMax   = 0.49 / 0.6
+	rocheLobeEqual = 0.49 / (0.6 + math.Ln2)
+)

@@ -99,3 +99,21 @@ func TestFastQuantiles(t *testing.T) {
 		}
 	}
 }
+
+// TestFillsRocheLobeShortcuts: the quick decisions of FillsRocheLobe agree with the full Eggleton
+// (1983) comparison over radii, orbits and mass ratios on both sides of every shortcut.
+func TestFillsRocheLobeShortcuts(t *testing.T) {
+	src := rand.New(rand.NewPCG(5, 5))
+	for range 200000 {
+		o := Orbit{A: math.Exp(12*src.Float64() - 5), E: 0.99 * src.Float64()}
+		md, mo := math.Exp(6*src.Float64()-1), math.Exp(6*src.Float64()-1)
+		r := math.Exp(10*src.Float64() - 2)
+		want := r*rSunAU >= RocheLobe(md/mo)*o.Periastron()
+		if got := FillsRocheLobe(r, o, md, mo); got != want {
+			t.Fatalf("FillsRocheLobe(%v, %+v, %v, %v) = %v, full comparison %v", r, o, md, mo, got, want)
+		}
+	}
+	if math.Abs(RocheLobe(1)-rocheLobeEqual) > 1e-15 || RocheLobe(1e12) > rocheLobeMax {
+		t.Error("shortcut constants disagree with RocheLobe")
+	}
+}

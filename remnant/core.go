@@ -354,6 +354,22 @@ type Prepared struct {
 	sameRadiusExponent    bool    // MSRadiusExponent == GiantRadiusExponent: one power serves both radii
 	eruptInvWidth         float64
 	noExpansionInvWidth   float64
+
+	// When the exponents of M in the helium-core, envelope-loss and radius relations are all whole
+	// multiples of 0.2 (as the defaults are), core evaluates one exp, M^0.2, and builds the powers
+	// from it by multiplication.
+	fifths                 bool
+	kHe, kEnv, kMS, kGiant int
+	envPivotPow            float64 // EnvelopePivotMass^-EnvelopeExponent
+}
+
+// fifthsOf returns k with e = k/5 for a whole k in [1, 10], or 0.
+func fifthsOf(e float64) int {
+	k := math.Round(5 * e)
+	if k < 1 || k > 10 || math.Abs(5*e-k) > 1e-12 {
+		return 0
+	}
+	return int(k)
 }
 
 // Prepare returns b with its constants computed once, for evolving many
@@ -373,7 +389,17 @@ func (b Builtin) prepare() Prepared {
 		sameRadiusExponent:  b.MSRadiusExponent == b.GiantRadiusExponent,
 		eruptInvWidth:       1 / (b.EruptionFullMass - b.EruptionMinMass),
 		noExpansionInvWidth: 1 / (b.NoExpansionStripping - 1),
-	}
+		kHe:                 fifthsOf(b.HeCoreExponent),
+		kEnv:                fifthsOf(b.EnvelopeExponent),
+		kMS:                 fifthsOf(b.MSRadiusExponent),
+		kGiant:              fifthsOf(b.GiantRadiusExponent),
+		envPivotPow:         math.Exp(-b.EnvelopeExponent * math.Log(b.EnvelopePivotMass)),
+	}.withFifths()
+}
+
+func (p Prepared) withFifths() Prepared {
+	p.fifths = p.kHe > 0 && p.kEnv > 0 && p.kMS > 0 && p.kGiant > 0
+	return p
 }
 
 // Builtin returns the parameters of p.
@@ -448,13 +474,34 @@ func (bz *BuiltinZ) core(m float64) Core {
 	lnm := math.Log(m)
 	zf := bz.zf
 
-	he0 := min(b.HeCoreCoefficient*powLn(m, lnm, b.HeCoreExponent), b.HeCoreMaxFraction*m)
+	// Powers of M: M^HeCoreExponent, (M/EnvelopePivotMass)^EnvelopeExponent, and M to the two
+	// radius exponents.
+	var mHe, mEnv, mMS, mG float64
+	if p.fifths {
+		var pw [11]float64
+		pw[1] = math.Exp(0.2 * lnm)
+		top := max(p.kHe, p.kEnv, p.kMS, p.kGiant)
+		for k := 2; k <= top; k++ {
+			pw[k] = pw[k-1] * pw[1]
+		}
+		mHe, mEnv, mMS, mG = pw[p.kHe], pw[p.kEnv]*p.envPivotPow, pw[p.kMS], pw[p.kGiant]
+	} else {
+		mHe = powLn(m, lnm, b.HeCoreExponent)
+		mEnv = powLn(m/b.EnvelopePivotMass, lnm-p.lnEnvPivot, b.EnvelopeExponent)
+		mMS = powLn(m, lnm, b.MSRadiusExponent)
+		mG = mMS
+		if !p.sameRadiusExponent {
+			mG = powLn(m, lnm, b.GiantRadiusExponent)
+		}
+	}
+
+	he0 := min(b.HeCoreCoefficient*mHe, b.HeCoreMaxFraction*m)
 
 	fH := min(b.MSWindMaxFraction, b.MSWindFraction*zf*powLn(m/b.MSWindPivotMass, lnm-p.lnMSPivot, b.MSWindExponent))
 	m1 := m * (1 - fH)
 	he := min(he0, m1)
 
-	s := b.EnvelopeLossFraction*zf*powLn(m/b.EnvelopePivotMass, lnm-p.lnEnvPivot, b.EnvelopeExponent) +
+	s := b.EnvelopeLossFraction*zf*mEnv +
 		clamp01((m-b.EruptionMinMass)*p.eruptInvWidth)
 
 	// Wolf-Rayet limit: He (1 + r)^(-1/n), r = (He/S)^n, S = WRLimitMass zf^-WRLimitExponent.
@@ -477,11 +524,6 @@ func (bz *BuiltinZ) core(m float64) Core {
 	x := pow(heF/b.COTransitionMass, b.COTransitionExponent)
 	co := heF * (b.COBaseFraction + b.COExtraFraction*x/(1+x))
 
-	mMS := powLn(m, lnm, b.MSRadiusExponent)
-	mG := mMS
-	if !p.sameRadiusExponent {
-		mG = powLn(m, lnm, b.GiantRadiusExponent)
-	}
 	rMS := b.MSRadiusCoefficient * mMS
 	rG := bz.giantScale * mG
 	w := clamp01((b.NoExpansionStripping - s) * p.noExpansionInvWidth)
