@@ -236,12 +236,23 @@ func (e *Engine) evolveSystem(id int64, i int, out *catalog.Batch, t *Tally, src
 
 	out.Cols[e.col.outcome].Cat[i] = e.col.outcomeOf[outcome]
 	t.Outcomes[outcome]++
-	t.AddStar(s1.Remnant.Type, s1.Remnant.Mass)
-	t.AddStar(s2.Remnant.Type, s2.Remnant.Mass)
-
 	for _, c := range [...]int{oc.a, oc.p, oc.e, oc.vsys, oc.vinf1, oc.vinf2, oc.tinsp, oc.tdelay} {
 		setNull(out, c, i)
 	}
+	if outcome == Interacting {
+		// Mass transfer would change both stars' lives: only their initial masses and the initial
+		// orbit are written, and the stars are not counted among the remnants.
+		if !b.keepRLOF {
+			*drop = true
+			t.Dropped++
+			return nil
+		}
+		e.col.star.putUnfollowed(out, i)
+		e.col.companion.putUnfollowed(out, i)
+		return nil
+	}
+	t.AddStar(s1.Remnant.Type, s1.Remnant.Mass)
+	t.AddStar(s2.Remnant.Type, s2.Remnant.Mass)
 	switch outcome {
 	case Bound:
 		m1f, m2f := finalMass(&s1), finalMass(&s2)

@@ -120,9 +120,16 @@ func (c *starColumns) put(b *catalog.Batch, i int, s *StarResult) {
 	setF32(b, c.kick, i, s.KickSpeed())
 }
 
-// putNull marks the star's nullable float columns missing in row i (a single star has no companion).
+// putNull marks all the star's columns missing in row i (a single star has no companion).
 func (c *starColumns) putNull(b *catalog.Batch, i int) {
-	for _, j := range [...]int{c.initialMass, c.lifetime, c.finalMass, c.heCore, c.coCore, c.fate, c.typ, c.mass, c.fallback, c.kick} {
+	setNull(b, c.initialMass, i)
+	c.putUnfollowed(b, i)
+}
+
+// putUnfollowed marks missing every column of the star but its initial mass: its life in an
+// interacting binary is not followed.
+func (c *starColumns) putUnfollowed(b *catalog.Batch, i int) {
+	for _, j := range [...]int{c.lifetime, c.finalMass, c.heCore, c.coCore, c.fate, c.typ, c.mass, c.fallback, c.kick} {
 		setNull(b, j, i)
 	}
 }

@@ -231,7 +231,7 @@ func (e *Engine) fillBatch(b int64, out *catalog.Batch, t *Tally) error {
 			rows++
 		}
 	}
-	out.Len = rows
+	out.Reset(rows) // shrinks to the kept rows; their values stay
 	t.Systems += count
 	return nil
 }

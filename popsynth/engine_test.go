@@ -317,3 +317,61 @@ func TestMemoryBounded(t *testing.T) {
 		t.Errorf("peak heap %.0f MB, Sys %.0f MB: want under 300 MB", float64(peak)/1e6, float64(ms.Sys)/1e6)
 	}
 }
+
+// TestInteractingSystems: with binary.interacting = keep, an interacting binary keeps its initial
+// masses and orbit and has every later column null; with drop it is left out of the catalogue but
+// still counted in corefall.systems and the mass represented.
+func TestInteractingSystems(t *testing.T) {
+	dir := t.TempDir()
+	keep, drop := filepath.Join(dir, "keep.parquet"), filepath.Join(dir, "drop.parquet")
+	sk := runTo(t, load(t, "systems=20000", "binary_fraction=1"), keep)
+	sd := runTo(t, load(t, "systems=20000", "binary_fraction=1", "binary.interacting=drop"), drop)
+	if sk.Outcomes[Interacting] == 0 || sk.Outcomes != sd.Outcomes {
+		t.Fatalf("outcomes keep %v, drop %v: want the same, with interacting systems", sk.Outcomes, sd.Outcomes)
+	}
+	if sd.Dropped != sk.Outcomes[Interacting] {
+		t.Errorf("dropped %d, want %d", sd.Dropped, sk.Outcomes[Interacting])
+	}
+	info, err := Inspect(drop)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if info.Tally.Systems != 20000-sd.Dropped || info.Tally.Outcomes[Interacting] != 0 {
+		t.Errorf("drop catalogue holds %d rows, %d interacting", info.Tally.Systems, info.Tally.Outcomes[Interacting])
+	}
+	if sk.MassRepresented != sd.MassRepresented {
+		t.Errorf("mass represented differs: keep %v, drop %v", sk.MassRepresented, sd.MassRepresented)
+	}
+	r, err := catalog.Open(keep)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer r.Close()
+	s := r.Schema()
+	var seen int
+	for {
+		b, err := r.Next()
+		if err != nil {
+			break
+		}
+		for i := range b.Len {
+			if b.Cols[s.Index("outcome")].Cat[i] != catalog.OutcomeInteracting {
+				continue
+			}
+			seen++
+			for _, name := range []string{"initial_mass", "companion_initial_mass", "initial_separation_au", "initial_period_days", "initial_eccentricity"} {
+				if v := b.Cols[s.Index(name)].Valid; v != nil && !v[i] {
+					t.Fatalf("interacting row %d: %s is null", i, name)
+				}
+			}
+			for _, name := range []string{"remnant_type", "remnant_mass", "final_mass", "companion_remnant_type", "companion_fate", "final_separation_au"} {
+				if b.Cols[s.Index(name)].Valid[i] {
+					t.Fatalf("interacting row %d: %s is not null", i, name)
+				}
+			}
+		}
+	}
+	if int64(seen) != sk.Outcomes[Interacting] {
+		t.Errorf("found %d interacting rows, want %d", seen, sk.Outcomes[Interacting])
+	}
+}

@@ -120,6 +120,14 @@ func printRunSummary(w io.Writer, cfg popsynth.Config, s popsynth.Summary) {
 	fmt.Fprintf(w, "mass represented: %.6g Msun (IMF %s over %g-%g Msun, sampled %g-%g)\n",
 		s.MassRepresented, cfg.IMF.Law, cfg.IMF.Min, cfg.IMF.Max, cfg.IMF.SampleMin, cfg.IMF.SampleMax)
 	printCounts(w, &s.Tally)
+	if s.Binaries > 0 {
+		o := &s.Outcomes
+		fmt.Fprintf(w, "binaries: %d bound, %d disrupted, %d interacting (not followed", o[popsynth.Bound], o[popsynth.Disrupted], o[popsynth.Interacting])
+		if s.Dropped > 0 {
+			fmt.Fprintf(w, "; %d left out of the catalogue", s.Dropped)
+		}
+		fmt.Fprintln(w, ")")
+	}
 }
 
 // printCounts prints remnant counts and fractions and the BH and NS mass quantiles.

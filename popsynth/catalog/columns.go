@@ -38,6 +38,8 @@ const (
 	float32Note   = " (float32: 7 significant digits)"
 	companionNote = "; null for a single star"
 	undefinedNote = "; null where undefined"
+	// interactingNote ends the docs of star columns that are null in an interacting binary.
+	interactingNote = "; null in an interacting binary, whose evolution is not followed"
 )
 
 // Indices of the words of the fate column (Column.Categories order).
@@ -110,15 +112,28 @@ func Columns(binaries bool) []Column {
 		Column{Name: ColSystemID, Unit: "1", Kind: Int64, Doc: "0-based index of the system in the run"},
 		Column{Name: ColMetallicity, Unit: "1", Kind: Float32, Doc: "metallicity Z, mass fraction of elements heavier than helium" + float32Note},
 	)
-	cols = append(cols, starColumns()...)
+	star := starColumns()
+	if binaries {
+		// The life after birth of a star in an interacting binary is not followed: null.
+		for i := range star {
+			if star[i].Name != ColInitialMass {
+				star[i].Nullable = true
+				star[i].Doc += interactingNote
+			}
+		}
+	}
+	cols = append(cols, star...)
 	if !binaries {
 		return cols
 	}
 	cols = append(cols, Column{Name: ColOutcome, Unit: "1", Kind: Category, Categories: OutcomeWords(),
 		Doc: "single, bound, disrupted (unbound by a supernova) or interacting (Roche-lobe contact, not followed)"})
 	for _, c := range starColumns() {
-		c.Name = CompanionPrefix + c.Name
 		c.Doc = "companion's " + c.Doc + companionNote
+		if c.Name != ColInitialMass {
+			c.Doc += interactingNote
+		}
+		c.Name = CompanionPrefix + c.Name
 		c.Nullable = true
 		cols = append(cols, c)
 	}
