@@ -6,6 +6,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"runtime/pprof"
 	"strconv"
 	"strings"
 
@@ -38,6 +39,7 @@ func (a *app) runCommand() *cobra.Command {
 		out     string
 		workers int
 		quiet   bool
+		cpuProf string
 	)
 	cmd := &cobra.Command{
 		Use:   "run",
@@ -64,6 +66,13 @@ second and leaves no partial file.`,
 			eng, err := popsynth.NewEngine(cfg)
 			if err != nil {
 				return err
+			}
+			if cpuProf != "" {
+				stop, err := startCPUProfile(cpuProf)
+				if err != nil {
+					return err
+				}
+				defer stop()
 			}
 			var progress popsynth.Progress
 			if !quiet && isTerminal(a.stderr) {
@@ -93,7 +102,21 @@ second and leaves no partial file.`,
 	cmd.Flags().StringVarP(&out, "output", "o", "", "catalogue path (sets output.path; the extension .parquet, .arrow or .csv also sets output.format)")
 	cmd.Flags().IntVar(&workers, "workers", 0, "worker goroutines (sets workers; 0 = one per core)")
 	cmd.Flags().BoolVarP(&quiet, "quiet", "q", false, "print nothing but errors")
+	cmd.Flags().StringVar(&cpuProf, "cpuprofile", "", "write a CPU profile of the run to this file (for go tool pprof)")
 	return cmd
+}
+
+// startCPUProfile starts a CPU profile written to path and returns the function that stops it.
+func startCPUProfile(path string) (func(), error) {
+	f, err := os.Create(path)
+	if err != nil {
+		return nil, fmt.Errorf("--cpuprofile: %w", err)
+	}
+	if err := pprof.StartCPUProfile(f); err != nil {
+		f.Close()
+		return nil, fmt.Errorf("--cpuprofile: %w", err)
+	}
+	return func() { pprof.StopCPUProfile(); f.Close() }, nil
 }
 
 func setsKey(set []string, key string) bool {
