@@ -64,6 +64,23 @@ func KnownKeys() []string {
 	return keys
 }
 
+// KeyHint returns a hint for an unknown config key: `; did you mean "x"?` naming the nearest valid
+// key (Levenshtein distance), or a pointer to `corefall config defaults`.
+func KeyHint(key string) string { return suggestion(key, defaultKeys()) }
+
+// IsSection reports whether key names a section of keys, such as imf or core.builtin.
+func IsSection(key string) bool {
+	for k := range defaultKeys() {
+		if strings.HasPrefix(k, key+".") {
+			return true
+		}
+	}
+	return false
+}
+
+// SectionExample returns up to three keys of a section, for messages.
+func SectionExample(section string) string { return exampleKeys(section, defaultKeys()) }
+
 // defaultKeys returns the set of leaf keys of the embedded default config, with a flag telling
 // whether the key holds a list.
 func defaultKeys() map[string]bool {

@@ -8,7 +8,6 @@ import (
 	"math"
 	"os"
 	"path/filepath"
-	"sort"
 	"strconv"
 	"strings"
 
@@ -184,8 +183,8 @@ func (s *Spec) parseBase(n *yaml.Node, known map[string]bool) error {
 			}
 			isLeaf, isKnown := known[key]
 			switch {
-			case !isKnown && !isSection(key, known):
-				return fmt.Errorf("sweep: %s:%d: base: unknown config key %q%s", s.Name, k.Line, key, suggest(key, known))
+			case !isKnown && !popsynth.IsSection(key):
+				return fmt.Errorf("sweep: %s:%d: base: unknown config key %q%s", s.Name, k.Line, key, popsynth.KeyHint(key))
 			case isKnown && isLeaf && v.Kind == yaml.MappingNode:
 				return fmt.Errorf("sweep: %s:%d: base: %q holds a value, not a map of keys", s.Name, k.Line, key)
 			case v.Kind == yaml.MappingNode:
@@ -193,7 +192,7 @@ func (s *Spec) parseBase(n *yaml.Node, known map[string]bool) error {
 					return err
 				}
 			case !isKnown:
-				return fmt.Errorf("sweep: %s:%d: base: %q is a section; give it keys such as %s", s.Name, k.Line, key, sectionExample(key, known))
+				return fmt.Errorf("sweep: %s:%d: base: %q is a section; give it keys such as %s", s.Name, k.Line, key, popsynth.SectionExample(key))
 			}
 			switch key {
 			case "output.path":
@@ -221,10 +220,10 @@ func (s *Spec) parseBase(n *yaml.Node, known map[string]bool) error {
 func (s *Spec) parseKeyValues(section string, k, v *yaml.Node, known map[string]bool) (string, []Value, error) {
 	key := strings.TrimSpace(k.Value)
 	if _, ok := known[key]; !ok {
-		if isSection(key, known) {
-			return "", nil, fmt.Errorf("sweep: %s:%d: %s: %q is a section; vary one of its keys, such as %s", s.Name, k.Line, section, key, sectionExample(key, known))
+		if popsynth.IsSection(key) {
+			return "", nil, fmt.Errorf("sweep: %s:%d: %s: %q is a section; vary one of its keys, such as %s", s.Name, k.Line, section, key, popsynth.SectionExample(key))
 		}
-		return "", nil, fmt.Errorf("sweep: %s:%d: %s: unknown config key %q%s", s.Name, k.Line, section, key, suggest(key, known))
+		return "", nil, fmt.Errorf("sweep: %s:%d: %s: unknown config key %q%s", s.Name, k.Line, section, key, popsynth.KeyHint(key))
 	}
 	if why, fixed := fixedKeys[key]; fixed {
 		return "", nil, fmt.Errorf("sweep: %s:%d: %s: %s cannot be varied: %s", s.Name, k.Line, section, key, why)
@@ -442,66 +441,4 @@ func knownKeys() map[string]bool {
 		m[k] = true
 	}
 	return m
-}
-
-func isSection(key string, known map[string]bool) bool {
-	for k := range known {
-		if strings.HasPrefix(k, key+".") {
-			return true
-		}
-	}
-	return false
-}
-
-func sectionExample(section string, known map[string]bool) string {
-	var ks []string
-	for k := range known {
-		if strings.HasPrefix(k, section+".") {
-			ks = append(ks, k)
-		}
-	}
-	sort.Strings(ks)
-	if len(ks) > 3 {
-		ks = ks[:3]
-	}
-	return strings.Join(ks, ", ")
-}
-
-// suggest returns `; did you mean "x"?` for the config key nearest to key.
-func suggest(key string, known map[string]bool) string {
-	best, bestD := "", 1<<30
-	for k := range known {
-		d := editDistance(key, k)
-		if i := strings.LastIndex(k, "."); i >= 0 && !strings.Contains(key, ".") {
-			d = min(d, editDistance(key, k[i+1:]))
-		}
-		if d < bestD || (d == bestD && k < best) {
-			best, bestD = k, d
-		}
-	}
-	if best == "" || bestD > max(2, len(key)/3) {
-		return "; see `corefall config defaults` for the keys"
-	}
-	return fmt.Sprintf("; did you mean %q?", best)
-}
-
-// editDistance is the Levenshtein distance between a and b.
-func editDistance(a, b string) int {
-	prev := make([]int, len(b)+1)
-	cur := make([]int, len(b)+1)
-	for j := range prev {
-		prev[j] = j
-	}
-	for i := 1; i <= len(a); i++ {
-		cur[0] = i
-		for j := 1; j <= len(b); j++ {
-			cost := 1
-			if a[i-1] == b[j-1] {
-				cost = 0
-			}
-			cur[j] = min(prev[j]+1, cur[j-1]+1, prev[j-1]+cost)
-		}
-		prev, cur = cur, prev
-	}
-	return prev[len(b)]
 }
