@@ -10,6 +10,7 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/corefall/corefall/popsynth/catalog"
 	"github.com/corefall/corefall/remnant"
 )
 
@@ -119,5 +120,52 @@ func TestBadStellarTables(t *testing.T) {
 	_, err := NewEngine(load(t, "core.model=table", "core.table="+demoGridPath, "metallicity.fixed=0.05"))
 	if err == nil || !strings.Contains(err.Error(), "metallicity") {
 		t.Errorf("outside the grid: %v", err)
+	}
+}
+
+// TestStellarTableParquet: the same grid read from Parquet and from CSV gives the same rows.
+func TestStellarTableParquet(t *testing.T) {
+	rows, err := ReadStellarTable(demoGridPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	names := append(append([]string(nil), StellarTableColumns...), "max_radius")
+	cols := make([]catalog.Column, len(names))
+	for i, n := range names {
+		cols[i] = catalog.Column{Name: n, Unit: "1", Kind: catalog.Float64}
+	}
+	s, err := catalog.NewSchema(cols)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b := catalog.NewBatch(s, len(rows))
+	b.Reset(len(rows))
+	for i, r := range rows {
+		for j, x := range []float64{r.InitialMass, r.Metallicity, r.FinalMass, r.HeCoreMass, r.COCoreMass, r.LifetimeMyr, r.MaxRadius} {
+			b.Cols[j].F64[i] = x
+		}
+	}
+	path := filepath.Join(t.TempDir(), "grid.parquet")
+	w, err := catalog.Create(path, s, catalog.Options{Format: catalog.Parquet})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := w.Write(b); err != nil {
+		t.Fatal(err)
+	}
+	if err := w.Close(); err != nil {
+		t.Fatal(err)
+	}
+	back, err := ReadStellarTable(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(back) != len(rows) {
+		t.Fatalf("%d rows from Parquet, %d from CSV", len(back), len(rows))
+	}
+	for i := range rows {
+		if back[i] != rows[i] {
+			t.Fatalf("row %d: Parquet %+v, CSV %+v", i, back[i], rows[i])
+		}
 	}
 }
