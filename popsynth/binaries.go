@@ -147,11 +147,8 @@ func (e *Engine) evolveSystem(id int64, i int, out *catalog.Batch, t *Tally, src
 		if err := e.phys.star(&s, m1, z, src, cache); err != nil {
 			return err
 		}
+		// Nullable columns start every batch null: the companion and orbit columns stay so.
 		e.col.star.put(out, i, &s)
-		e.col.companion.putNull(out, i)
-		for _, c := range [...]int{oc.a0, oc.p0, oc.e0, oc.a, oc.p, oc.e, oc.vsys, oc.vinf1, oc.vinf2, oc.tinsp, oc.tdelay} {
-			setNull(out, c, i)
-		}
 		out.Cols[e.col.outcome].Cat[i] = e.col.outcomeOf[Single]
 		t.AddStar(s.Remnant.Type, s.Remnant.Mass)
 		t.Outcomes[Single]++
@@ -178,8 +175,6 @@ func (e *Engine) evolveSystem(id int64, i int, out *catalog.Batch, t *Tally, src
 	setF32(out, oc.a0, i, a0)
 	setF32(out, oc.p0, i, p0)
 	setF32(out, oc.e0, i, e0)
-	e.col.star.put(out, i, &s1)
-	e.col.companion.put(out, i, &s2)
 	t.Binaries++
 
 	first := pairStar{&s1, &e.col.star, s1.Remnant.Type == remnant.Star}
@@ -236,21 +231,21 @@ func (e *Engine) evolveSystem(id int64, i int, out *catalog.Batch, t *Tally, src
 
 	out.Cols[e.col.outcome].Cat[i] = e.col.outcomeOf[outcome]
 	t.Outcomes[outcome]++
-	for _, c := range [...]int{oc.a, oc.p, oc.e, oc.vsys, oc.vinf1, oc.vinf2, oc.tinsp, oc.tdelay} {
-		setNull(out, c, i)
-	}
 	if outcome == Interacting {
 		// Mass transfer would change both stars' lives: only their initial masses and the initial
-		// orbit are written, and the stars are not counted among the remnants.
+		// orbit are written (the rest stays null), and the stars are not counted among the remnants.
 		if !b.keepRLOF {
 			*drop = true
 			t.Dropped++
+			e.col.clearRow(out, i) // the next system reuses the row
 			return nil
 		}
-		e.col.star.putUnfollowed(out, i)
-		e.col.companion.putUnfollowed(out, i)
+		setF32(out, e.col.star.initialMass, i, m1)
+		setF32(out, e.col.companion.initialMass, i, m2)
 		return nil
 	}
+	e.col.star.put(out, i, &s1)
+	e.col.companion.put(out, i, &s2)
 	t.AddStar(s1.Remnant.Type, s1.Remnant.Mass)
 	t.AddStar(s2.Remnant.Type, s2.Remnant.Mass)
 	switch outcome {

@@ -12,7 +12,6 @@ import (
 type starColumns struct {
 	initialMass, lifetime, finalMass, heCore, coCore, fate, typ, mass, fallback, kick int
 	fateCode, typeCode                                                                [8]uint8
-	nullable                                                                          bool
 }
 
 // columns are the positions of every column the engine fills.
@@ -23,6 +22,7 @@ type columns struct {
 	outcome   int
 	outcomeOf [numOutcomes]uint8
 	orbit     orbitColumns
+	nullable  []int // every nullable column
 }
 
 type orbitColumns struct {
@@ -67,7 +67,6 @@ func indexStar(s *catalog.Schema, prefix string) starColumns {
 	cols := s.Columns()
 	c.fateCode = categoryCodes(cols[c.fate], func(v uint8) string { return remnant.Fate(v).String() })
 	c.typeCode = categoryCodes(cols[c.typ], func(v uint8) string { return remnant.Type(v).String() })
-	c.nullable = cols[c.initialMass].Nullable
 	return c
 }
 
@@ -76,6 +75,11 @@ func indexColumns(s *catalog.Schema, binaries bool) columns {
 		id:   mustIndex(s, "system_id"),
 		z:    mustIndex(s, "metallicity"),
 		star: indexStar(s, ""),
+	}
+	for j, col := range s.Columns() {
+		if col.Nullable {
+			c.nullable = append(c.nullable, j)
+		}
 	}
 	if !binaries {
 		return c
@@ -120,20 +124,6 @@ func (c *starColumns) put(b *catalog.Batch, i int, s *StarResult) {
 	setF32(b, c.kick, i, s.KickSpeed())
 }
 
-// putNull marks all the star's columns missing in row i (a single star has no companion).
-func (c *starColumns) putNull(b *catalog.Batch, i int) {
-	setNull(b, c.initialMass, i)
-	c.putUnfollowed(b, i)
-}
-
-// putUnfollowed marks missing every column of the star but its initial mass: its life in an
-// interacting binary is not followed.
-func (c *starColumns) putUnfollowed(b *catalog.Batch, i int) {
-	for _, j := range [...]int{c.lifetime, c.finalMass, c.heCore, c.coCore, c.fate, c.typ, c.mass, c.fallback, c.kick} {
-		setNull(b, j, i)
-	}
-}
-
 // setCat sets a category column value (and marks it present when the column is nullable).
 func setCat(b *catalog.Batch, col, i int, code uint8) {
 	cd := &b.Cols[col]
@@ -152,14 +142,27 @@ func setF32(b *catalog.Batch, col, i int, x float64) {
 	}
 }
 
-// setNull marks a nullable column's value missing.
-func setNull(b *catalog.Batch, col, i int) {
-	cd := &b.Cols[col]
-	if cd.F32 != nil {
-		cd.F32[i] = 0
+// clearNullable makes every nullable column of the batch null in all its rows (a fast memory
+// clear), so that rows set only the values they have.
+func (c *columns) clearNullable(b *catalog.Batch) {
+	for _, j := range c.nullable {
+		cd := &b.Cols[j]
+		clear(cd.Valid)
+		clear(cd.F32)
+		clear(cd.Cat)
 	}
-	if cd.Cat != nil {
-		cd.Cat[i] = 0
+}
+
+// clearRow makes every nullable column null in row i.
+func (c *columns) clearRow(b *catalog.Batch, i int) {
+	for _, j := range c.nullable {
+		cd := &b.Cols[j]
+		cd.Valid[i] = false
+		if cd.F32 != nil {
+			cd.F32[i] = 0
+		}
+		if cd.Cat != nil {
+			cd.Cat[i] = 0
+		}
 	}
-	cd.Valid[i] = false
 }

@@ -212,6 +212,7 @@ func (e *Engine) fillBatch(b int64, out *catalog.Batch, t *Tally) error {
 	first := b * BatchSize
 	count := min(int64(BatchSize), e.cfg.Systems-first)
 	out.Reset(int(count))
+	e.col.clearNullable(out)
 	src := Stream(e.cfg.Seed, uint64(b))
 	var cache coreCache
 	rows := 0 // rows kept so far; a dropped system's row is overwritten by the next one
