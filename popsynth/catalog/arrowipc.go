@@ -44,13 +44,15 @@ func newArrowEncoder(out io.Writer, s *Schema, opt Options, tmp string) (*arrowE
 }
 
 func (e *arrowEncoder) write(b *Batch) error {
-	if b.Len == 0 {
-		return nil
-	}
-	rec := e.conv.record(b, 0, b.Len)
-	defer rec.Release()
-	if err := e.iw.Write(rec); err != nil {
-		return e.spoolErr(err)
+	// Record batches hold at most ReadBatchRows rows, so that a reader
+	// needs no more memory than that for one.
+	for from := 0; from < b.Len; from += ReadBatchRows {
+		rec := e.conv.record(b, from, min(b.Len, from+ReadBatchRows))
+		err := e.iw.Write(rec)
+		rec.Release()
+		if err != nil {
+			return e.spoolErr(err)
+		}
 	}
 	return e.spoolErr(nil)
 }

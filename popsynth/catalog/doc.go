@@ -55,6 +55,42 @@
 // names are written, metadata are written in key order, and the Parquet
 // bytes do not depend on Options.Workers.
 //
+// # Damaged files
+//
+// A damaged catalogue (a flipped bit, a cut, an edited byte) gives an error
+// naming the file and what is wrong, or rows; never a crash. arrow-go
+// allocates whatever lengths a file declares, and an allocation of
+// terabytes kills the process with an out-of-memory error that no recover
+// can catch, so Open and Next check the structure of the file first, in
+// O(metadata) time, before arrow-go reads it:
+//
+//   - Arrow IPC: the trailer, every table, vtable, offset, vector and
+//     string of the footer flatbuffer (schema nested at most 64 deep), each
+//     block inside the file before the footer, and each batch's metadata:
+//     its buffers inside its body, its nodes and buffers those of the
+//     schema's columns, every fixed-width buffer long enough for the rows,
+//     and the uncompressed lengths declared by its compressed buffers
+//     adding up to at most 64 times the file size plus 64 MiB.
+//   - Parquet: the trailer, the Thrift structure of the footer (no list or
+//     string longer than the bytes left), the schema tree, each column chunk
+//     inside the file before the footer with as many values as its row
+//     group has rows, the stored Arrow schema (as for Arrow IPC), and every
+//     page header: pages inside their chunk, at most 256 MiB (and 64 times
+//     the file size plus 16 MiB) uncompressed, dictionary pages no larger
+//     in values than in bytes, zstd frames declaring no more than the page,
+//     and the block header of delta-encoded values.
+//   - CSV: lines of at most 16 MiB.
+//
+// Behind the checks, a panic in arrow-go becomes an error, after which the
+// Reader returns that error only, and arrow-go's allocator refuses single
+// allocations beyond 256 MiB plus 64 times the file size. Batches hold
+// ReadBatchRows rows, or fewer for a small file or a schema of more than
+// about 100 columns. Known limits: the checks look at the start of
+// delta-encoded values only, so the second delta header of a
+// DELTA_BYTE_ARRAY page is not checked (arrow-go then allocates up to
+// 16 GiB of address space); a crafted zstd page can still expand up to
+// 32768-fold in arrow-go's Parquet decoder.
+//
 // # Metadata
 //
 // Keys are owned by the caller; the standard ones are the Meta* constants

@@ -14,15 +14,29 @@ import (
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
 	"github.com/apache/arrow-go/v18/arrow/ipc"
-	"github.com/apache/arrow-go/v18/arrow/memory"
+	"github.com/apache/arrow-go/v18/parquet"
 	"github.com/apache/arrow-go/v18/parquet/file"
 	"github.com/apache/arrow-go/v18/parquet/pqarrow"
 )
 
 // ReadBatchRows is the largest number of rows in a batch returned by a
-// Reader of a Parquet or CSV file; an Arrow IPC file is returned in the
-// batches it was written in.
+// Reader of a Parquet or CSV file (fewer for a schema of more than about
+// 100 columns; see batchRows); an Arrow IPC file is returned in the record
+// batches it holds, which in files written here have at most ReadBatchRows
+// rows.
 const ReadBatchRows = 1 << 16
+
+// readBatchBytes bounds the memory of a batch read from a Parquet or CSV
+// file, whose number of columns the file sets: batchRows keeps wide schemas
+// from multiplying ReadBatchRows into gigabytes.
+const readBatchBytes = 64 << 20
+
+// batchRows returns the rows in a batch of ncol columns: ReadBatchRows, or
+// fewer if ncol columns of up to 9 bytes a row (a float64 or int64 value
+// and a validity flag) would need more than readBatchBytes.
+func batchRows(ncol int) int {
+	return max(1, min(ReadBatchRows, readBatchBytes/(9*max(ncol, 1))))
+}
 
 // Reader streams the rows of a catalogue written by this package.
 type Reader struct {
@@ -34,6 +48,7 @@ type Reader struct {
 	numRows int64
 	batch   *Batch
 	next    func() error // fills r.batch; io.EOF at the end
+	err     error        // set after a decoder panic: returned by every later Next
 	release func()
 	lut     [][]int16 // per column: dictionary index -> category index
 }
@@ -66,13 +81,22 @@ func Open(path string) (*Reader, error) {
 	switch {
 	case n >= 4 && string(magic[:4]) == "PAR1":
 		r.format = Parquet
-		err = r.openParquet()
-	case n >= 6 && string(magic[:6]) == "ARROW1":
+	case n >= 6 && string(magic[:6]) == arrowMagic:
 		r.format = Arrow
-		err = r.openArrow()
 	default:
 		r.format = CSV
-		err = r.openCSV(st.Size())
+	}
+	err = guard(func() error {
+		switch r.format {
+		case Parquet:
+			return r.openParquet(st.Size())
+		case Arrow:
+			return r.openArrow(st.Size())
+		}
+		return r.openCSV(st.Size())
+	})
+	if errors.Is(err, errPanic) {
+		err = r.corrupt("cannot read the "+r.format.String()+" metadata", err)
 	}
 	if err == nil {
 		err = r.checkOurs()
@@ -130,16 +154,43 @@ func (r *Reader) Next() (*Batch, error) {
 	if r.next == nil {
 		return nil, fmt.Errorf("catalog: %s: reader is closed", r.path)
 	}
-	if err := r.next(); err != nil {
+	if r.err != nil {
+		return nil, r.err
+	}
+	if err := guard(r.next); err != nil {
+		if errors.Is(err, errPanic) {
+			// The decoder's state is unknown after a panic: stop here.
+			r.err = r.corrupt("reading rows", err)
+			return nil, r.err
+		}
 		return nil, err
 	}
 	return r.batch, nil
 }
 
+// errPanic marks an error made from a panic by guard.
+var errPanic = errors.New("decoder panic")
+
+// guard runs fn and turns a panic in it into an error wrapping errPanic.
+// arrow-go and the Parquet decoders panic on some inconsistent inputs that
+// the structural checks do not rule out; a panic, unlike running out of
+// memory, can be recovered, so the checks bound every allocation and this
+// is the last guard.
+func guard(fn func() error) (err error) {
+	defer func() {
+		if p := recover(); p != nil {
+			err = fmt.Errorf("%w: %v", errPanic, p)
+		}
+	}()
+	return fn()
+}
+
 // Close releases the file.
 func (r *Reader) Close() error {
 	if r.release != nil {
-		r.release()
+		// After a decoder panic the decoder's state is unknown: a panic
+		// while releasing it is not passed on.
+		_ = guard(func() error { r.release(); return nil })
 		r.release = nil
 	}
 	r.next = nil
@@ -151,13 +202,25 @@ func (r *Reader) Close() error {
 	return err
 }
 
-func (r *Reader) openParquet() error {
-	pr, err := file.NewParquetReader(r.f)
+func (r *Reader) openParquet(size int64) error {
+	// Check the structure first: arrow-go allocates whatever lengths the
+	// file declares (see parquetcheck.go).
+	footerStart, err := checkParquetFooter(r.f, size)
+	if err != nil {
+		return r.corruptParquet(err)
+	}
+	alloc := newCappedAllocator(size)
+	props := parquet.NewReaderProperties(alloc)
+	pr, err := file.NewParquetReader(r.f, file.WithReadProps(props))
 	if err != nil {
 		return r.corrupt("cannot read the Parquet footer", err)
 	}
 	r.meta = map[string]string{}
+	var arrowSchema *string
 	for _, kv := range pr.MetaData().KeyValueMetadata() {
+		if kv.Key == "ARROW:schema" {
+			arrowSchema = kv.Value
+		}
 		if kv.Key == "ARROW:schema" || kv.Value == nil {
 			continue
 		}
@@ -166,7 +229,21 @@ func (r *Reader) openParquet() error {
 	if _, ok := r.meta[MetaSchemaVersion]; !ok {
 		return nil // checkOurs reports it
 	}
-	fr, err := pqarrow.NewFileReader(pr, pqarrow.ArrowReadProperties{BatchSize: ReadBatchRows}, memory.DefaultAllocator)
+	if arrowSchema != nil {
+		// pqarrow decodes the stored Arrow schema with arrow-go's IPC
+		// reader, which trusts the lengths in it (see arrowcheck.go).
+		if err := checkArrowSchemaValue(*arrowSchema); err != nil {
+			return r.corruptParquet(err)
+		}
+	}
+	if err := checkParquetChunks(r.f, pr.MetaData(), footerStart, size); err != nil {
+		return r.corruptParquet(err)
+	}
+	rows := batchRows(pr.MetaData().Schema.NumColumns())
+	if n := pr.NumRows(); n >= 0 && n < int64(rows) {
+		rows = max(int(n), 1) // a small file needs no larger batch
+	}
+	fr, err := pqarrow.NewFileReader(pr, pqarrow.ArrowReadProperties{BatchSize: int64(rows)}, alloc)
 	if err != nil {
 		return r.corrupt("cannot read the Parquet schema", err)
 	}
@@ -195,10 +272,24 @@ func (r *Reader) openParquet() error {
 	return nil
 }
 
-func (r *Reader) openArrow() error {
-	fr, err := ipc.NewFileReader(r.f, ipc.WithAllocator(memory.DefaultAllocator))
+func (r *Reader) openArrow(size int64) error {
+	// Check the structure first: arrow-go allocates whatever lengths the
+	// file declares (see arrowcheck.go).
+	a, err := checkArrowFile(r.f, size)
+	if err != nil {
+		return r.corruptArrow(err)
+	}
+	var fr *ipc.FileReader
+	err = guard(func() (err error) {
+		fr, err = ipc.NewFileReader(r.f, ipc.WithAllocator(newCappedAllocator(size)))
+		return err
+	})
 	if err != nil {
 		return r.corrupt("cannot read the Arrow IPC footer", err)
+	}
+	if fr.NumRecords() != len(a.batches) {
+		fr.Close()
+		return r.corruptArrow(fmt.Errorf("arrow-go sees %d record batches, the footer holds %d", fr.NumRecords(), len(a.batches)))
 	}
 	as := fr.Schema()
 	r.meta = map[string]string{}
@@ -214,18 +305,39 @@ func (r *Reader) openArrow() error {
 		fr.Close()
 		return fmt.Errorf("catalog: %s: %w", r.path, err)
 	}
+	cols, err := arrowColumns(as)
+	if err != nil {
+		fr.Close()
+		return fmt.Errorf("catalog: %s: %w", r.path, err)
+	}
 	r.release = func() { fr.Close() }
+	check := newArrowChecker(size)
+	next := 0
 	r.next = func() error {
-		rec, err := fr.Read()
-		if err == io.EOF {
+		if next == len(a.batches) {
 			return io.EOF
 		}
+		// The batch's metadata are checked against the schema before
+		// arrow-go reads them.
+		if _, err := check.message(r.f, a.batches[next], 3, "record batch", next, cols); err != nil {
+			return r.corruptArrow(err)
+		}
+		rec, err := fr.Read()
+		next++
 		if err != nil {
-			return r.corrupt("reading a record batch", err)
+			return r.corrupt(fmt.Sprintf("reading record batch %d", next-1), err)
 		}
 		return r.fromRecord(rec)
 	}
 	return nil
+}
+
+func (r *Reader) corruptParquet(err error) error {
+	return fmt.Errorf("catalog: %s: corrupt Parquet file: %w (the file is truncated or corrupt; was its writer interrupted?)", r.path, err)
+}
+
+func (r *Reader) corruptArrow(err error) error {
+	return fmt.Errorf("catalog: %s: corrupt Arrow IPC file: %w (the file is truncated or corrupt; was its writer interrupted?)", r.path, err)
 }
 
 // fromRecord copies an Arrow record into r.batch.
@@ -395,12 +507,14 @@ func (r *Reader) openCSV(size int64) error {
 		return err
 	}
 	fields := make([][]byte, len(s.cols))
+	// A row takes at least one byte per column (its commas and newline).
+	rows := int(min(int64(batchRows(len(s.cols))), size/int64(len(s.cols))+1))
 	var total int64
 	r.next = func() error {
 		b := r.batch
-		b.Reset(ReadBatchRows)
+		b.Reset(rows)
 		n := 0
-		for n < ReadBatchRows {
+		for n < rows {
 			line, err := st.readLine()
 			if err == io.EOF {
 				break
@@ -433,15 +547,23 @@ func (r *Reader) openCSV(size int64) error {
 	return nil
 }
 
+// csvMaxLine bounds the length of a CSV line. Rows take a few hundred
+// bytes and the longest comment line, the effective configuration, a few
+// kilobytes; a longer line means a damaged file or not a catalogue at all.
+const csvMaxLine = 16 << 20
+
 // readLine returns the next line without its newline. A last line without a
 // newline means the file was cut short.
 func (st *csvState) readLine() ([]byte, error) {
 	line, err := st.br.ReadSlice('\n')
 	if err == bufio.ErrBufferFull {
 		long := append([]byte(nil), line...)
-		for err == bufio.ErrBufferFull {
+		for err == bufio.ErrBufferFull && len(long) <= csvMaxLine {
 			line, err = st.br.ReadSlice('\n')
 			long = append(long, line...)
+		}
+		if len(bytes.TrimSuffix(long, []byte{'\n'})) > csvMaxLine {
+			return nil, fmt.Errorf("line %d is longer than %d bytes, far longer than any catalogue line (is the file damaged?)", st.line+1, csvMaxLine)
 		}
 		line = long
 	}
@@ -473,6 +595,9 @@ func parseComment(line []byte) (key, value string, ok bool) {
 // csvTrailer reads the metadata comment lines after the last row.
 func (r *Reader) csvTrailer(size int64) error {
 	for window := int64(1 << 16); ; window *= 4 {
+		if window > 4*csvMaxLine {
+			return fmt.Errorf("catalog: %s: the comment lines after the last row, or the last line, take more than %d bytes (is the file damaged?)", r.path, window/4)
+		}
 		start := max(size-window, 0)
 		buf := make([]byte, size-start)
 		if _, err := r.f.ReadAt(buf, start); err != nil && err != io.EOF {
