@@ -23,7 +23,8 @@ type CatalogueInfo struct {
 // primaries and companions, outcomes, BH and NS masses.
 func Inspect(path string) (CatalogueInfo, error) {
 	info := CatalogueInfo{Path: path}
-	r, err := catalog.Open(path)
+	r, err := openColumnsPresent(path, catalog.ColRemnantType, catalog.ColRemnantMass, catalog.ColOutcome,
+		catalog.CompanionPrefix+catalog.ColRemnantType, catalog.CompanionPrefix+catalog.ColRemnantMass)
 	if err != nil {
 		return info, err
 	}

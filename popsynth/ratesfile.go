@@ -169,7 +169,9 @@ type rateColumns struct {
 
 // scanCatalogue calls fn with every batch of the catalogue at path.
 func scanCatalogue(path string, fn func(*catalog.Batch, *rateColumns) error) error {
-	r, err := catalog.Open(path)
+	r, err := openColumnsPresent(path, catalog.ColMetallicity, catalog.ColDelayTime,
+		catalog.ColRemnantType, catalog.ColRemnantMass, catalog.ColLifetime,
+		catalog.CompanionPrefix+catalog.ColRemnantType, catalog.CompanionPrefix+catalog.ColRemnantMass, catalog.CompanionPrefix+catalog.ColLifetime)
 	if err != nil {
 		return err
 	}
@@ -210,4 +212,24 @@ func scanCatalogue(path string, fn func(*catalog.Batch, *rateColumns) error) err
 			return err
 		}
 	}
+}
+
+// openColumnsPresent opens the catalogue at path for those of the named columns it has (a
+// single-star catalogue has no companion or orbit columns), so that only they are decoded.
+func openColumnsPresent(path string, names ...string) (*catalog.Reader, error) {
+	r, err := catalog.Open(path)
+	if err != nil {
+		return nil, err
+	}
+	var have []string
+	for _, n := range names {
+		if r.Schema().Index(n) >= 0 {
+			have = append(have, n)
+		}
+	}
+	r.Close()
+	if len(have) == 0 {
+		return catalog.Open(path)
+	}
+	return catalog.OpenColumns(path, have...)
 }

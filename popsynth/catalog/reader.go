@@ -51,13 +51,56 @@ type Reader struct {
 	err     error        // set after a decoder panic: returned by every later Next
 	release func()
 	lut     [][]int16 // per column: dictionary index -> category index
+
+	// With OpenColumns: the wanted columns. Parquet decodes only those
+	// (want); Arrow and CSV decode all and Next hands out the subset
+	// (proj, out, outSchema).
+	want      []string
+	proj      []int
+	out       *Batch
+	outSchema *Schema
 }
 
 // Open opens a catalogue for reading. The format is detected from the
 // content: "PAR1" starts a Parquet file, "ARROW1" an Arrow IPC file,
 // anything else is read as CSV. A file without the corefall.schema_version
 // metadata is refused.
-func Open(path string) (*Reader, error) {
+func Open(path string) (*Reader, error) { return open(path, nil) }
+
+// OpenColumns is Open for a reader that returns only the named columns, in
+// the file's order. Parquet files decode only those columns, which makes
+// reading a few columns of a wide catalogue much faster. A name the file
+// does not have is an error.
+func OpenColumns(path string, names ...string) (*Reader, error) {
+	if len(names) == 0 {
+		return nil, fmt.Errorf("catalog: OpenColumns %s: no column names given", path)
+	}
+	return open(path, names)
+}
+
+// project returns the positions in s of the columns named in want (in s's
+// order) and the schema of those columns.
+func project(s *Schema, want []string, path string) ([]int, *Schema, error) {
+	keep := map[string]bool{}
+	for _, n := range want {
+		if s.Index(n) < 0 {
+			return nil, nil, fmt.Errorf("catalog: %s has no column %q", path, n)
+		}
+		keep[n] = true
+	}
+	var idx []int
+	var cols []Column
+	for i, c := range s.cols {
+		if keep[c.Name] {
+			idx = append(idx, i)
+			cols = append(cols, c)
+		}
+	}
+	sub, err := NewSchema(cols)
+	return idx, sub, err
+}
+
+func open(path string, want []string) (*Reader, error) {
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, fmt.Errorf("catalog: cannot open %s: %w", path, err)
@@ -77,7 +120,7 @@ func Open(path string) (*Reader, error) {
 	}
 	var magic [6]byte
 	n, _ := f.ReadAt(magic[:], 0)
-	r := &Reader{path: path, f: f, numRows: -1}
+	r := &Reader{path: path, f: f, numRows: -1, want: want}
 	switch {
 	case n >= 4 && string(magic[:4]) == "PAR1":
 		r.format = Parquet
@@ -107,6 +150,13 @@ func Open(path string) (*Reader, error) {
 	}
 	r.batch = NewBatch(r.schema, 0)
 	r.lut = make([][]int16, len(r.schema.cols))
+	if r.want != nil && r.format != Parquet {
+		if r.proj, r.outSchema, err = project(r.schema, r.want, path); err != nil {
+			r.Close()
+			return nil, err
+		}
+		r.out = &Batch{Schema: r.outSchema, Cols: make([]ColumnData, len(r.proj))}
+	}
 	return r, nil
 }
 
@@ -132,7 +182,12 @@ func (r *Reader) Path() string { return r.path }
 func (r *Reader) Format() Format { return r.format }
 
 // Schema returns the catalogue's schema, rebuilt from the file.
-func (r *Reader) Schema() *Schema { return r.schema }
+func (r *Reader) Schema() *Schema {
+	if r.outSchema != nil {
+		return r.outSchema
+	}
+	return r.schema
+}
 
 // Metadata returns a copy of the file-level metadata.
 func (r *Reader) Metadata() map[string]string {
@@ -164,6 +219,13 @@ func (r *Reader) Next() (*Batch, error) {
 			return nil, r.err
 		}
 		return nil, err
+	}
+	if r.proj != nil {
+		r.out.Len = r.batch.Len
+		for k, j := range r.proj {
+			r.out.Cols[k] = r.batch.Cols[j]
+		}
+		return r.out, nil
 	}
 	return r.batch, nil
 }
@@ -255,7 +317,14 @@ func (r *Reader) openParquet(size int64) error {
 		return fmt.Errorf("catalog: %s: %w", r.path, err)
 	}
 	r.numRows = pr.NumRows()
-	rr, err := fr.GetRecordReader(context.Background(), nil, nil)
+	var leaves []int // nil: every column
+	if r.want != nil {
+		// The catalogue's schema is flat: field i is Parquet leaf column i.
+		if leaves, r.schema, err = project(r.schema, r.want, r.path); err != nil {
+			return err
+		}
+	}
+	rr, err := fr.GetRecordReader(context.Background(), leaves, nil)
 	if err != nil {
 		return r.corrupt("cannot start reading rows", err)
 	}
