@@ -228,9 +228,6 @@ vary:
 // TestSlurmNotWantedSkips documents the switch: without CI=true or COREFALL_SLURM=1 the Slurm test
 // skips with instructions, it never runs by accident on a developer's machine.
 func TestSlurmNotWantedSkips(t *testing.T) {
-	if os.Getenv("CI") == "true" || os.Getenv("COREFALL_SLURM") == "1" {
-		t.Skip("the switch is on: TestSlurmSweep runs")
-	}
 	ctx := context.Background()
 	cmd := exec.CommandContext(ctx, os.Args[0], "-test.run=^TestSlurmSweep$", "-test.v")
 	cmd.Env = append(os.Environ(), "CI=", "COREFALL_SLURM=")
