@@ -87,13 +87,14 @@ func (e *Engine) Schema() *catalog.Schema { return e.schema }
 // every star of the full IMF range [imf.min, imf.max], sampled or not, companions included. Rate
 // studies divide event counts by it.
 func (e *Engine) MassRepresented() float64 {
-	n := float64(e.cfg.Systems)
-	// Systems whose primary lies in the sampled range are a fraction NumberFraction of all systems.
-	perSystem := e.full.Mean()
-	if e.bin != nil {
-		perSystem += e.bin.meanCompanionMass(e.full)
+	// The primaries (and single stars): N sampled stand for N / NumberFraction(sample range) stars
+	// of the whole IMF, of mean mass <m> each.
+	primaries := imf.MassRepresented(e.full, e.cfg.IMF.SampleMin, e.cfg.IMF.SampleMax, int(e.cfg.Systems))
+	if e.bin == nil {
+		return primaries
 	}
-	return n / e.full.NumberFraction(e.cfg.IMF.SampleMin, e.cfg.IMF.SampleMax) * perSystem
+	// Each of those systems carries on average meanCompanionMass of companions besides <m>.
+	return primaries * (1 + e.bin.meanCompanionMass(e.full)/e.full.Mean())
 }
 
 // Progress is called by Run with the number of systems written so far.
