@@ -263,7 +263,6 @@ func (e *Engine) evolveSystem(id int64, i int, out *catalog.Batch, t *Tally, src
 	case Disrupted:
 		setF32(out, oc.vinf1, i, vinfFirst)
 		setF32(out, oc.vinf2, i, vinfSecond)
-
 	}
 	return nil
 }
