@@ -251,11 +251,10 @@ func (b bound) String() string {
 var (
 	positive    = bound{0, math.Inf(1), true, true}  // 0 < x < inf
 	nonNegative = bound{0, math.Inf(1), false, true} // 0 <= x < inf
-	anyFinite   = bound{math.Inf(-1), math.Inf(1), true, true}
-	unitClosed  = bound{0, 1, false, false} // 0 <= x <= 1
-	unitPosHigh = bound{0, 1, true, false}  // 0 < x <= 1
-	unitLowOpen = bound{0, 1, false, true}  // 0 <= x < 1
-	unitOpen    = bound{0, 1, true, true}   // 0 < x < 1
+	unitClosed  = bound{0, 1, false, false}          // 0 <= x <= 1
+	unitPosHigh = bound{0, 1, true, false}           // 0 < x <= 1
+	unitLowOpen = bound{0, 1, false, true}           // 0 <= x < 1
+	unitOpen    = bound{0, 1, true, true}            // 0 < x < 1
 )
 
 // checkParams returns an error naming the first parameter outside its

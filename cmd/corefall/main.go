@@ -26,7 +26,6 @@ const (
 type app struct {
 	stdout, stderr io.Writer
 	environ        []string
-	stdinTTY       bool
 }
 
 func main() {

@@ -8,7 +8,6 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
-	"runtime"
 	"strings"
 	"testing"
 	"time"
@@ -48,9 +47,10 @@ func goTool(t *testing.T) string {
 	if p, err := exec.LookPath("go"); err == nil {
 		return p
 	}
-	p := filepath.Join(runtime.GOROOT(), "bin", "go")
+	// Not on PATH: the usual install location of the Go distribution.
+	p := "/usr/local/go/bin/go"
 	if _, err := os.Stat(p); err != nil {
-		t.Fatalf("cannot find the go command to build corefall: %v", err)
+		t.Fatalf("cannot find the go command to build corefall (not on PATH, not at %s): %v", p, err)
 	}
 	return p
 }
