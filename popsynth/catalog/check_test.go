@@ -9,11 +9,9 @@ import (
 	"strings"
 	"testing"
 
-	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/parquet"
 	"github.com/apache/arrow-go/v18/parquet/compress"
 	"github.com/apache/arrow-go/v18/parquet/file"
-	"github.com/apache/arrow-go/v18/parquet/pqarrow"
 )
 
 // TestCheckSchemaTree: Parquet lists the schema tree depth first, each
@@ -103,23 +101,8 @@ func writeParquet(t *testing.T, s *Schema, rows int, props ...parquet.WriterProp
 	t.Helper()
 	b := NewBatch(s, rows)
 	fillBatch(b, 0, rows, rand.New(rand.NewPCG(3, 3)))
-	meta := arrow.NewMetadata([]string{MetaSchemaVersion}, []string{SchemaVersion})
-	as := arrow.NewSchema(s.Arrow().Fields(), &meta)
 	var out bytes.Buffer
-	fw, err := pqarrow.NewFileWriter(as, &out, parquet.NewWriterProperties(props...), pqarrow.NewArrowWriterProperties(pqarrow.WithStoreSchema()))
-	if err != nil {
-		t.Fatal(err)
-	}
-	rb := newRecordBuilder(s)
-	rec := rb.record(b, 0, rows)
-	err = fw.Write(array2schema(rec, as))
-	rec.Release()
-	if err != nil {
-		t.Fatal(err)
-	}
-	if err := fw.Close(); err != nil {
-		t.Fatal(err)
-	}
+	writeWithPqarrow(t, &out, s, b, rows, props...)
 	return out.Bytes()
 }
 

@@ -18,7 +18,6 @@ import (
 	"github.com/apache/arrow-go/v18/arrow/memory"
 	"github.com/apache/arrow-go/v18/parquet"
 	"github.com/apache/arrow-go/v18/parquet/compress"
-	"github.com/apache/arrow-go/v18/parquet/pqarrow"
 )
 
 // corruptions returns n damaged copies of data, made with a fixed seed:
@@ -286,20 +285,7 @@ func TestOtherWritersAccepted(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			props := parquet.NewWriterProperties(append([]parquet.WriterProperty{parquet.WithMaxRowGroupLength(1200)}, tc.props...)...)
-			fw, err := pqarrow.NewFileWriter(as, f, props, pqarrow.NewArrowWriterProperties(pqarrow.WithStoreSchema()))
-			if err != nil {
-				t.Fatal(err)
-			}
-			rec := rb.record(b, 0, rows)
-			err = fw.Write(array2schema(rec, as))
-			rec.Release()
-			if err != nil {
-				t.Fatal(err)
-			}
-			if err := fw.Close(); err != nil {
-				t.Fatal(err)
-			}
+			writeWithPqarrow(t, f, s, b, rows, append([]parquet.WriterProperty{parquet.WithMaxRowGroupLength(1200)}, tc.props...)...)
 			_, got := readAll(t, path)
 			compareBatches(t, want, got)
 		})

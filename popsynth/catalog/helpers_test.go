@@ -1,9 +1,14 @@
 package catalog
 
 import (
+	"io"
 	"math"
 	"math/rand/v2"
 	"testing"
+
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/parquet"
+	"github.com/apache/arrow-go/v18/parquet/pqarrow"
 )
 
 // fillBatch fills b with n rows of random-looking but plausible values:
@@ -63,4 +68,28 @@ func mustSchema(t testing.TB, cols []Column) *Schema {
 		t.Fatal(err)
 	}
 	return s
+}
+
+// writeWithPqarrow writes rows [0, rows) of b straight through pqarrow, as
+// another program would, with the writer properties props, to w (closed if
+// it is a Closer). The Arrow schema carries corefall's schema-version key
+// so that Open accepts the file.
+func writeWithPqarrow(t *testing.T, w io.Writer, s *Schema, b *Batch, rows int, props ...parquet.WriterProperty) {
+	t.Helper()
+	meta := arrow.NewMetadata([]string{MetaSchemaVersion}, []string{SchemaVersion})
+	as := arrow.NewSchema(s.Arrow().Fields(), &meta)
+	fw, err := pqarrow.NewFileWriter(as, w, parquet.NewWriterProperties(props...), pqarrow.NewArrowWriterProperties(pqarrow.WithStoreSchema()))
+	if err != nil {
+		t.Fatal(err)
+	}
+	rb := newRecordBuilder(s)
+	rec := rb.record(b, 0, rows)
+	err = fw.Write(array2schema(rec, as))
+	rec.Release()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := fw.Close(); err != nil {
+		t.Fatal(err)
+	}
 }
