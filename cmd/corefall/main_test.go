@@ -38,9 +38,10 @@ func hasKeys(t *testing.T, what string, m map[string]any, keys ...string) {
 	}
 }
 
-// TestRemnantJSON checks the remnant command's JSON keys and a worked value of Fryer et al. (2012)
-// rapid engine from REFERENCES.md: M_CO = 9, M_fin = 25 -> 13.995 Msun BH (computed from the
-// paper's formulas: f_fb = 0.25-1.275/24 ... see remnant tests; M_bar 15.55, M_grav = 0.9 M_bar).
+// TestRemnantJSON checks the remnant command's JSON keys and a worked value of the Fryer et al.
+// (2012) rapid engine (REFERENCES.md, computed): M_CO = 9, M_fin = 25 gives a1 = 0.25 - 1.275/24,
+// b1 = 1 - 11 a1, f_fb = 9 a1 + b1 = 0.60625, M_fb = 24 f_fb = 14.55, M_bar = 1 + M_fb = 15.55 and a
+// BH of M_grav = 0.9 M_bar = 13.995 Msun.
 func TestRemnantJSON(t *testing.T) {
 	code, out, errs := runCLI(t, "remnant", "--co-core", "9", "--final-mass", "25", "--engine", "rapid", "--json")
 	if code != 0 {
