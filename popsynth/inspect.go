@@ -23,8 +23,13 @@ type CatalogueInfo struct {
 // primaries and companions, outcomes, BH and NS masses.
 func Inspect(path string) (CatalogueInfo, error) {
 	info := CatalogueInfo{Path: path}
-	r, err := openColumnsPresent(path, catalog.ColRemnantType, catalog.ColRemnantMass, catalog.ColOutcome,
-		catalog.CompanionPrefix+catalog.ColRemnantType, catalog.CompanionPrefix+catalog.ColRemnantMass)
+	full, err := catalog.Open(path) // for the schema: which of the columns below it has
+	if err != nil {
+		return info, err
+	}
+	full.Close()
+	r, err := catalog.OpenColumns(path, present(full.Schema(), catalog.ColRemnantType, catalog.ColRemnantMass, catalog.ColOutcome,
+		catalog.CompanionPrefix+catalog.ColRemnantType, catalog.CompanionPrefix+catalog.ColRemnantMass)...)
 	if err != nil {
 		return info, err
 	}

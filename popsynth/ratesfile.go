@@ -34,7 +34,7 @@ func CatalogueRates(path string, opt RatesOptions) (rates.Result, error) {
 	if err != nil {
 		return rates.Result{}, err
 	}
-	info, mc, err := catalogueConfig(path)
+	info, mc, schema, err := catalogueConfig(path)
 	if err != nil {
 		return rates.Result{}, err
 	}
@@ -60,15 +60,25 @@ func CatalogueRates(path string, opt RatesOptions) (rates.Result, error) {
 	rowsAt := map[float32]int64{}
 	var rows int64
 	if mc.Sampling == "list" {
-		if err := scanCatalogue(path, func(b *catalog.Batch, c *rateColumns) error {
-			for i := range b.Len {
-				rowsAt[b.Cols[c.z].F32[i]]++
-			}
-			rows += int64(b.Len)
-			return nil
-		}); err != nil {
+		r, err := catalog.OpenColumns(path, catalog.ColMetallicity)
+		if err != nil {
 			return rates.Result{}, err
 		}
+		for {
+			b, err := r.Next()
+			if errors.Is(err, io.EOF) {
+				break
+			}
+			if err != nil {
+				r.Close()
+				return rates.Result{}, fmt.Errorf("%s: %w", path, err)
+			}
+			for _, z := range b.Cols[0].F32[:b.Len] {
+				rowsAt[z]++
+			}
+			rows += int64(b.Len)
+		}
+		r.Close()
 	}
 	weight := func(z float32) float64 {
 		if mc.Sampling == "list" {
@@ -91,7 +101,7 @@ func CatalogueRates(path string, opt RatesOptions) (rates.Result, error) {
 		return float64(z)
 	}
 
-	err = scanCatalogue(path, func(b *catalog.Batch, c *rateColumns) error {
+	err = scanCatalogue(path, present(schema, rateColumnNames...), func(b *catalog.Batch, c *rateColumns) error {
 		for i := range b.Len {
 			z32 := b.Cols[c.z].F32[i]
 			z, w := exactZ(z32), weight(z32)
@@ -137,25 +147,32 @@ func CatalogueRates(path string, opt RatesOptions) (rates.Result, error) {
 	return tally.Rates(zs)
 }
 
-// catalogueConfig reads a catalogue's provenance and the metallicity sampling it was made with.
-func catalogueConfig(path string) (CatalogueInfo, MetallicityConfig, error) {
+// catalogueConfig reads a catalogue's provenance, the metallicity sampling it was made with and its
+// schema.
+func catalogueConfig(path string) (CatalogueInfo, MetallicityConfig, *catalog.Schema, error) {
 	r, err := catalog.Open(path)
 	if err != nil {
-		return CatalogueInfo{}, MetallicityConfig{}, err
+		return CatalogueInfo{}, MetallicityConfig{}, nil, err
 	}
 	defer r.Close()
 	info := CatalogueInfo{Path: path, Metadata: r.Metadata()}
 	cfg, err := ParseYAMLConfig(path+" (stored config)", info.Metadata[catalog.MetaConfig])
 	if err != nil {
-		return info, MetallicityConfig{}, fmt.Errorf("%s: the stored configuration does not load: %w", path, err)
+		return info, MetallicityConfig{}, nil, fmt.Errorf("%s: the stored configuration does not load: %w", path, err)
 	}
 	if _, err := fmt.Sscan(info.Metadata[catalog.MetaMassRepresented], &info.MassRepresented); err != nil ||
 		!(info.MassRepresented > 0) || math.IsInf(info.MassRepresented, 0) {
-		return info, MetallicityConfig{}, fmt.Errorf("%s: metadata %s = %q is not a positive mass", path,
+		return info, MetallicityConfig{}, nil, fmt.Errorf("%s: metadata %s = %q is not a positive mass", path,
 			catalog.MetaMassRepresented, info.Metadata[catalog.MetaMassRepresented])
 	}
-	return info, cfg.Metallicity, nil
+	return info, cfg.Metallicity, r.Schema(), nil
 }
+
+// rateColumnNames are the columns the rate estimator reads, where the catalogue has them.
+var rateColumnNames = []string{catalog.ColMetallicity, catalog.ColDelayTime,
+	catalog.ColRemnantType, catalog.ColRemnantMass, catalog.ColLifetime,
+	catalog.CompanionPrefix + catalog.ColRemnantType, catalog.CompanionPrefix + catalog.ColRemnantMass,
+	catalog.CompanionPrefix + catalog.ColLifetime}
 
 type rateStar struct{ typ, mass, life int }
 
@@ -167,11 +184,9 @@ type rateColumns struct {
 	types map[int][]remnant.Type
 }
 
-// scanCatalogue calls fn with every batch of the catalogue at path.
-func scanCatalogue(path string, fn func(*catalog.Batch, *rateColumns) error) error {
-	r, err := openColumnsPresent(path, catalog.ColMetallicity, catalog.ColDelayTime,
-		catalog.ColRemnantType, catalog.ColRemnantMass, catalog.ColLifetime,
-		catalog.CompanionPrefix+catalog.ColRemnantType, catalog.CompanionPrefix+catalog.ColRemnantMass, catalog.CompanionPrefix+catalog.ColLifetime)
+// scanCatalogue reads the named columns of the catalogue at path and calls fn with every batch.
+func scanCatalogue(path string, names []string, fn func(*catalog.Batch, *rateColumns) error) error {
+	r, err := catalog.OpenColumns(path, names...)
 	if err != nil {
 		return err
 	}
@@ -214,22 +229,14 @@ func scanCatalogue(path string, fn func(*catalog.Batch, *rateColumns) error) err
 	}
 }
 
-// openColumnsPresent opens the catalogue at path for those of the named columns it has (a
-// single-star catalogue has no companion or orbit columns), so that only they are decoded.
-func openColumnsPresent(path string, names ...string) (*catalog.Reader, error) {
-	r, err := catalog.Open(path)
-	if err != nil {
-		return nil, err
-	}
+// present returns those of names that s has (a single-star catalogue has no companion or orbit
+// columns).
+func present(s *catalog.Schema, names ...string) []string {
 	var have []string
 	for _, n := range names {
-		if r.Schema().Index(n) >= 0 {
+		if s.Index(n) >= 0 {
 			have = append(have, n)
 		}
 	}
-	r.Close()
-	if len(have) == 0 {
-		return catalog.Open(path)
-	}
-	return catalog.OpenColumns(path, have...)
+	return have
 }
