@@ -52,3 +52,34 @@ func TestCatalogueRatesNormalisation(t *testing.T) {
 		t.Errorf("grid %v, want [0 0.5 1]", res.Z)
 	}
 }
+
+// TestCatalogueRatesList: a catalogue sampled from a list of two nearly equal metallicities
+// (0.0141 and 0.0142, whose stars end alike) stands, after the reweighting, for all star formation
+// (the two bins span every log Z and their shares of star formation add up to one), as a fixed-Z
+// catalogue at 0.0142 does: the two give the same rates within their Monte Carlo errors. Each listed
+// value carries the mass of the rows drawn at it: weighting every row by the whole catalogue's mass
+// instead would halve the rates, which this test would catch.
+func TestCatalogueRatesList(t *testing.T) {
+	dir := t.TempDir()
+	fixed, list := filepath.Join(dir, "f.parquet"), filepath.Join(dir, "l.parquet")
+	runTo(t, load(t, "systems=100000", "seed=5", "binary_fraction=0.3"), fixed)
+	runTo(t, load(t, "systems=100000", "seed=6", "binary_fraction=0.3", "metallicity.sampling=list", "metallicity.values=[0.0141, 0.0142]"), list)
+	opt := RatesOptions{Cosmology: rates.Planck18(), SFR: rates.MadauFragos2017(), MetallicitySigma: 0.5, ZMax: 2, DZ: 1}
+	a, err := CatalogueRates(fixed, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := CatalogueRates(list, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range a.Z {
+		for _, k := range []rates.EventKind{rates.NSFormation, rates.BHFormation} {
+			x, y := a.Rates.Of(k)[i], b.Rates.Of(k)[i]
+			sig := math.Hypot(a.Uncertainty.Of(k)[i], b.Uncertainty.Of(k)[i])
+			if x == 0 || math.Abs(x-y) > 4*sig {
+				t.Errorf("z = %v, %v: fixed %v, two-value list %v (4 sigma = %v)", a.Z[i], k, x, y, 4*sig)
+			}
+		}
+	}
+}
