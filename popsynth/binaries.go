@@ -175,7 +175,6 @@ func (e *Engine) evolveSystem(id int64, i int, out *catalog.Batch, t *Tally, src
 	setF32(out, oc.a0, i, a0)
 	setF32(out, oc.p0, i, p0)
 	setF32(out, oc.e0, i, e0)
-	t.Binaries++
 
 	first := pairStar{&s1, &e.col.star, s1.Remnant.Type == remnant.Star}
 	second := pairStar{&s2, &e.col.companion, s2.Remnant.Type == remnant.Star}

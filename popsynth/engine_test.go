@@ -108,9 +108,9 @@ func TestCatalogueReadBack(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if infoB.Tally.Counts != sb.Counts || infoB.Tally.Outcomes != sb.Outcomes || infoB.Tally.Binaries != sb.Binaries {
-		t.Errorf("binary catalogue: file counts %v %v %d, run %v %v %d", infoB.Tally.Counts, infoB.Tally.Outcomes, infoB.Tally.Binaries,
-			sb.Counts, sb.Outcomes, sb.Binaries)
+	if infoB.Tally.Counts != sb.Counts || infoB.Tally.Outcomes != sb.Outcomes || infoB.Tally.Binaries() != sb.Binaries() {
+		t.Errorf("binary catalogue: file counts %v %v %d, run %v %v %d", infoB.Tally.Counts, infoB.Tally.Outcomes, infoB.Tally.Binaries(),
+			sb.Counts, sb.Outcomes, sb.Binaries())
 	}
 	for _, k := range []string{catalog.MetaConfig, catalog.MetaSeed, catalog.MetaVersion, catalog.MetaGoVersion, catalog.MetaSystems, catalog.MetaMassRepresented, catalog.MetaBinaries} {
 		if info.Metadata[k] == "" {

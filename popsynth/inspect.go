@@ -102,9 +102,6 @@ func Inspect(path string) (CatalogueInfo, error) {
 				}
 				t.AddStar(typeMaps[k][b.Cols[sc.typ].Cat[i]], float64(b.Cols[sc.mass].F32[i]))
 			}
-			if o != Single {
-				t.Binaries++
-			}
 		}
 	}
 	if d, ok := info.Metadata[MetaDropped]; ok {

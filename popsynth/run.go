@@ -76,7 +76,7 @@ func (e *Engine) WriteCatalogue(ctx context.Context, path string, progress Progr
 	}
 	tally, err := e.Run(ctx, w.Write, progress)
 	if err == nil {
-		err = w.SetMetadata(catalog.MetaBinaries, strconv.FormatInt(tally.Binaries, 10))
+		err = w.SetMetadata(catalog.MetaBinaries, strconv.FormatInt(tally.Binaries(), 10))
 	}
 	if err == nil && e.bin != nil {
 		err = w.SetMetadata(MetaDropped, strconv.FormatInt(tally.Dropped, 10))

@@ -117,8 +117,7 @@ func (h *MassHist) Quantile(p float64) float64 {
 // Tally counts a population's remnants and outcomes. Counts are over stars (a binary adds two), by
 // remnant type; Outcomes are over systems.
 type Tally struct {
-	Systems  int64 // systems evolved
-	Binaries int64
+	Systems  int64    // systems evolved (or, read back, rows)
 	Dropped  int64    // interacting binaries left out of the catalogue (binary.interacting = drop)
 	Counts   [8]int64 // indexed by remnant.Type
 	Outcomes [numOutcomes]int64
@@ -136,13 +135,17 @@ func (t *Tally) AddStar(typ remnant.Type, mass float64) {
 	}
 }
 
+// Binaries returns the number of binaries: the systems whose outcome is not single.
+func (t *Tally) Binaries() int64 {
+	return t.Outcomes[Bound] + t.Outcomes[Disrupted] + t.Outcomes[Interacting]
+}
+
 // Count returns the number of remnants of type typ.
 func (t *Tally) Count(typ remnant.Type) int64 { return t.Counts[typ] }
 
 // Merge adds o to t.
 func (t *Tally) Merge(o *Tally) {
 	t.Systems += o.Systems
-	t.Binaries += o.Binaries
 	t.Dropped += o.Dropped
 	for i := range t.Counts {
 		t.Counts[i] += o.Counts[i]

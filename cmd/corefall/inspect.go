@@ -50,7 +50,7 @@ func (a *app) inspectCommand() *cobra.Command {
 func toInspectJSON(info popsynth.CatalogueInfo) inspectJSON {
 	t := &info.Tally
 	j := inspectJSON{
-		Systems: t.Systems, Binaries: t.Binaries, MassRepresented: info.MassRepresented,
+		Systems: t.Systems, Binaries: t.Binaries(), MassRepresented: info.MassRepresented,
 		Counts:          map[string]int64{},
 		BHMassQuantiles: map[string]float64{},
 		Seed:            info.Metadata[catalog.MetaSeed],
@@ -67,7 +67,7 @@ func toInspectJSON(info popsynth.CatalogueInfo) inspectJSON {
 		j.BHMassQuantiles["p95"] = t.BH.Quantile(0.95)
 		j.BHMassQuantiles["max"] = t.BH.Max
 	}
-	if t.Binaries > 0 {
+	if t.Binaries() > 0 {
 		j.Outcomes = map[string]int64{}
 		for o, n := range t.Outcomes {
 			j.Outcomes[popsynth.Outcome(o).String()] = n
@@ -108,7 +108,7 @@ func printInspect(w io.Writer, info popsynth.CatalogueInfo) {
 	t := &info.Tally
 	fmt.Fprintf(w, "%s\n", info.Path)
 	fmt.Fprintf(w, "  made by corefall %s (%s), seed %s\n", md[catalog.MetaVersion], md[catalog.MetaGoVersion], md[catalog.MetaSeed])
-	fmt.Fprintf(w, "  %d systems (%d binaries), representing %.6g Msun of stars\n", t.Systems, t.Binaries, info.MassRepresented)
+	fmt.Fprintf(w, "  %d systems (%d binaries), representing %.6g Msun of stars\n", t.Systems, t.Binaries(), info.MassRepresented)
 	if hl := configHighlights(md[catalog.MetaConfig]); len(hl) > 0 {
 		fmt.Fprintln(w, "  config:")
 		for _, l := range hl {
@@ -121,7 +121,7 @@ func printInspect(w io.Writer, info popsynth.CatalogueInfo) {
 		fmt.Fprintln(w)
 		printHistogram(w, &t.BH, "BH mass (Msun)", 50)
 	}
-	if t.Binaries > 0 {
+	if t.Binaries() > 0 {
 		fmt.Fprintln(w)
 		fmt.Fprintln(w, "binary outcomes:")
 		for o, n := range t.Outcomes {

@@ -136,14 +136,14 @@ func isTerminal(w io.Writer) bool {
 // printRunSummary prints counts by remnant type, BH mass quantiles, mass represented and speed.
 func printRunSummary(w io.Writer, cfg popsynth.Config, s popsynth.Summary) {
 	fmt.Fprintf(w, "wrote %s: %d systems", s.Path, s.Systems)
-	if s.Binaries > 0 {
-		fmt.Fprintf(w, " (%d binaries)", s.Binaries)
+	if s.Binaries() > 0 {
+		fmt.Fprintf(w, " (%d binaries)", s.Binaries())
 	}
 	fmt.Fprintf(w, " in %.2f s (%.3g systems/s)\n", s.Seconds, s.SystemsPerSecond())
 	fmt.Fprintf(w, "mass represented: %.6g Msun (IMF %s over %g-%g Msun, sampled %g-%g)\n",
 		s.MassRepresented, cfg.IMF.Law, cfg.IMF.Min, cfg.IMF.Max, cfg.IMF.SampleMin, cfg.IMF.SampleMax)
 	printCounts(w, &s.Tally)
-	if s.Binaries > 0 {
+	if s.Binaries() > 0 {
 		o := &s.Outcomes
 		fmt.Fprintf(w, "binaries: %d bound, %d disrupted, %d interacting (not followed", o[popsynth.Bound], o[popsynth.Disrupted], o[popsynth.Interacting])
 		if s.Dropped > 0 {

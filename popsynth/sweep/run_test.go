@@ -265,9 +265,9 @@ func TestRunCollect(t *testing.T) {
 				t.Errorf("row %d: %s = %d, the part holds %d", row, name, got, want)
 			}
 		}
-		if i64("systems", row) != info.Systems || i64("rows", row) != info.Tally.Systems || i64("binaries", row) != info.Tally.Binaries {
+		if i64("systems", row) != info.Systems || i64("rows", row) != info.Tally.Systems || i64("binaries", row) != info.Tally.Binaries() {
 			t.Errorf("row %d: systems %d rows %d binaries %d; part says %d, %d, %d", row,
-				i64("systems", row), i64("rows", row), i64("binaries", row), info.Systems, info.Tally.Systems, info.Tally.Binaries)
+				i64("systems", row), i64("rows", row), i64("binaries", row), info.Systems, info.Tally.Systems, info.Tally.Binaries())
 		}
 		// The part stores masses as float32, so a quantile read back may fall in the neighbouring
 		// 0.01 Msun bin of the engine's histogram.

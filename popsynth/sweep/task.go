@@ -196,7 +196,7 @@ func (d *Dir) runTask(ctx context.Context, t *Task, opt TaskOptions) (DoneRecord
 		Seed:            t.Seed,
 		ConfigSHA256:    textSHA256(t.Config),
 		Systems:         sum.Systems,
-		Binaries:        sum.Binaries,
+		Binaries:        sum.Binaries(),
 		MassRepresented: sum.MassRepresented,
 		Counts:          countsOf(&sum.Tally),
 		BHMass:          quantilesOf(&sum.BH),
