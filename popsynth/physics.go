@@ -144,6 +144,8 @@ type Physics struct {
 	Prescription remnant.Prescription
 	Kicks        remnant.Kicks
 	TimeLimitMyr float64
+
+	builtin *remnant.Prepared // Core, when it is the builtin model (cached per metallicity)
 }
 
 // Physics builds the physics set by c's core, explosion, pair_instability, white_dwarf and kicks keys.
@@ -159,6 +161,7 @@ func (c Config) Physics() (Physics, error) {
 	if p.Core, err = c.CoreModel(); err != nil {
 		return p, err
 	}
+	p.builtin, _ = p.Core.(*remnant.Prepared)
 	return p, nil
 }
 
@@ -192,8 +195,8 @@ type coreCache struct {
 // core returns the core of a star of mass m and metallicity z, using and updating cache when the
 // core model is the builtin one.
 func (p *Physics) core(m, z float64, cache *coreCache) (remnant.Core, error) {
-	b, builtin := p.Core.(*remnant.Prepared)
-	if !builtin || cache == nil {
+	b := p.builtin
+	if b == nil || cache == nil {
 		return p.Core.Core(m, z)
 	}
 	if !cache.ok || cache.bz.Metallicity() != z {
